@@ -1,0 +1,138 @@
+// allocsim simulate: one run of an experiment, written to a results file.
+#include <H5Cpp.h>
+
+#include <chrono>
+#include <sstream>
+#include <iostream>
+
+#include "allocsim/core/error.hpp"
+#include "allocsim/core/json.hpp"
+#include "allocsim/experiments/keys.hpp"
+#include "allocsim/experiments/simulation.hpp"
+#include "commands.hpp"
+#include "options.hpp"
+
+namespace allocsim::cli {
+namespace {
+
+constexpr double kProgressSeconds = 2.0;
+
+po::options_description simulate_options() {
+  po::options_description options("simulate options");
+  options.add_options()
+      ("config", po::value<std::string>(), "experiment file (INI); --section.key options win over it")
+      ("out", po::value<std::string>(), "results file to write (default: output.file)")
+      ("threads", po::value<int>()->default_value(1), "worker threads (results do not depend on it)")
+      ("quiet", "no progress on stderr")
+      ("json", "print one JSON object on stdout")
+      ("help,h", "show this help");
+  for (const auto& key : experiment_keys()) {
+    options.add_options()(key.name.c_str(), po::value<std::string>(), key.description.c_str());
+  }
+  return options;
+}
+
+std::string usage() {
+  std::ostringstream out;
+  out << "usage: allocsim simulate [--config EXP.ini] [--section.key VALUE ...] [--out FILE.h5]\n\n"
+      << "Runs one simulation and writes it to an HDF5 results file.\n\n"
+      << "  --config FILE   experiment file (INI); --section.key options win over it\n"
+      << "  --out FILE      results file to write (default: output.file)\n"
+      << "  --threads N     worker threads (results do not depend on it; default 1)\n"
+      << "  --quiet         no progress on stderr\n"
+      << "  --json          print one JSON object on stdout\n\n"
+      << experiment_keys_help();
+  return out.str();
+}
+
+// Parses the command line; unknown options name the nearest valid key.
+po::variables_map parse_arguments(const Arguments& args, const po::options_description& options) {
+  po::variables_map vm;
+  try {
+    const po::parsed_options parsed =
+        po::command_line_parser(args).options(options).allow_unregistered().run();
+    for (const auto& option : parsed.options) {
+      if (!option.unregistered && option.position_key < 0) continue;
+      const std::string given = option.original_tokens.empty() ? option.string_key
+                                                               : option.original_tokens.front();
+      if (option.position_key >= 0) {
+        throw InputError("allocsim simulate", "unexpected argument '" + given +
+                                                  "' (use --config FILE for an experiment file)");
+      }
+      const std::string name = given.substr(given.find_first_not_of('-'));
+      throw InputError(given, "unknown option (did you mean --" +
+                                  nearest_experiment_key(name.substr(0, name.find('='))) + "?)");
+    }
+    po::store(parsed, vm);
+    po::notify(vm);
+  } catch (const po::error& e) {
+    throw InputError("allocsim simulate",
+                     std::string(e.what()) + " (see 'allocsim simulate --help')");
+  }
+  return vm;
+}
+
+ProgressCallback stderr_progress() {
+  const auto start = std::chrono::steady_clock::now();
+  auto last = start;
+  return [start, last](long round, long rounds) mutable {
+    const auto now = std::chrono::steady_clock::now();
+    if (std::chrono::duration<double>(now - last).count() < kProgressSeconds && round < rounds) {
+      return;
+    }
+    if (round == rounds && std::chrono::duration<double>(now - start).count() < kProgressSeconds) {
+      return;
+    }
+    last = now;
+    std::cerr << "allocsim simulate: round " << round << "/" << rounds << " ("
+              << (100 * round / rounds) << "%), "
+              << std::chrono::duration<double>(now - start).count() << " s\n";
+  };
+}
+
+}  // namespace
+
+int simulate_command(const Arguments& args) {
+  const po::options_description options = simulate_options();
+  const po::variables_map vm = parse_arguments(args, options);
+  if (vm.count("help")) {
+    std::cout << usage();
+    return kExitOk;
+  }
+  std::vector<std::pair<std::string, std::string>> command_line;
+  for (const auto& key : experiment_keys()) {
+    if (vm.count(key.name)) command_line.emplace_back(key.name, vm[key.name].as<std::string>());
+  }
+  if (vm.count("out")) command_line.emplace_back("output.file", vm["out"].as<std::string>());
+  const std::string config = vm.count("config") ? vm["config"].as<std::string>() : "";
+  const ExperimentValues values = experiment_values(config, command_line);
+
+  SimulationRequest request;
+  request.threads = vm["threads"].as<int>();
+  if (request.threads < 1) throw InputError("--threads", "must be at least 1");
+  request.tool_version = ALLOCSIM_VERSION;
+  if (!vm.count("quiet")) request.progress = stderr_progress();
+  H5::Exception::dontPrint();
+  const SimulationReport report = simulate_to_file(values, request);
+
+  if (vm.count("json")) {
+    JsonObject json;
+    json.add("status", "complete")
+        .add("file", report.output_file)
+        .add("run", report.run)
+        .add("agents", static_cast<long long>(report.agents))
+        .add("partners", static_cast<long long>(report.partners))
+        .add("rule", values.text("dynamics.rule"))
+        .add("rounds", static_cast<long long>(report.result.rounds))
+        .add("snapshots", static_cast<long long>(report.result.snapshots))
+        .add("units_after_burn_in", report.result.total.sum())
+        .add("unplaced_units", static_cast<long long>(report.result.unplaced_units))
+        .add("seconds", report.result.seconds);
+    std::cout << json.str() << "\n";
+  } else {
+    std::cout << report.brief() << "\n";
+  }
+  return kExitOk;
+}
+
+}  // namespace allocsim::cli

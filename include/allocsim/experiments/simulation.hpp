@@ -1,0 +1,50 @@
+// One simulated run from an experiment's key values to a results file:
+// scenario, dynamics, recorder, parameters and summary (what `allocsim
+// simulate` does; sweeps call record_run once per run).
+#pragma once
+
+#include <H5Cpp.h>
+
+#include <cstdint>
+#include <string>
+
+#include "allocsim/experiments/experiment.hpp"
+#include "allocsim/experiments/keys.hpp"
+#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/sim/engine.hpp"
+
+namespace allocsim {
+
+struct SimulationRequest {
+  int threads = 1;                 // worker threads; results are identical for any count
+  std::string tool_version = "";   // stored as the tool_version attribute
+  ProgressCallback progress;       // may be empty
+};
+
+struct SimulationReport {
+  std::string output_file;
+  std::string run;                 // e.g. run-000000
+  long agents = 0, partners = 0;
+  RunResult result;
+
+  // One line for the command line.
+  std::string brief() const;
+};
+
+// Every key as an attribute of the run group: numbers as float64 (int64 for
+// whole-number keys), words, paths and truth values as text; plus seed and
+// status.
+void write_run_parameters(H5::Group& run_group, const ExperimentValues& values,
+                          const std::string& status);
+
+// Builds the scenario of run `run_index`, plays the dynamics and writes
+// /runs/<run>/ (parameters, scenario, allocation, prices, empty analysis).
+RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t run_index,
+                     const ExperimentValues& values, const SimulationSettings& settings,
+                     const ProgressCallback& progress);
+
+// The whole of `allocsim simulate`: checks everything it can before creating
+// the file, so bad input leaves no file behind.
+SimulationReport simulate_to_file(const ExperimentValues& values, const SimulationRequest& request);
+
+}  // namespace allocsim

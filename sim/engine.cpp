@@ -1,0 +1,52 @@
+#include "allocsim/sim/engine.hpp"
+
+#include <chrono>
+#include <sstream>
+#include <vector>
+
+#include "allocsim/core/random.hpp"
+
+namespace allocsim {
+
+std::string RunResult::brief() const {
+  std::ostringstream out;
+  out.precision(3);
+  out << rounds << " rounds in " << seconds << " s (" << (rounds > 0 ? 1e3 * seconds / rounds : 0)
+      << " ms/round), " << snapshots << " snapshots, " << total.sum() << " units after burn-in";
+  if (unplaced_units > 0) out << ", " << unplaced_units << " units unplaced";
+  return out.str();
+}
+
+RunResult run_dynamics(const TransportProblem& problem, const DynamicsOptions& options,
+                       std::uint64_t seed, std::uint64_t run, SnapshotSink* sink,
+                       const ProgressCallback& progress) {
+  options.validate();
+  const long n = problem.agents(), m = problem.partners();
+  auto rule = make_rule(problem, options, seed, run);
+  RoundQuota quota(options.units, std::vector<double>(problem.budgets.data(),
+                                                      problem.budgets.data() + n));
+  RunResult result;
+  result.total = Matrix::Zero(n, m);
+  result.last_round = Matrix::Zero(n, m);
+  Matrix window = Matrix::Zero(n, m);
+  const auto start = std::chrono::steady_clock::now();
+  for (long round = 1; round <= options.rounds; ++round) {
+    rule->play_round(round, quota.next_round(), result.last_round);
+    window += result.last_round;
+    if (round > options.burn_in) result.total += result.last_round;
+    result.unplaced_units += rule->unplaced_units();
+    if (round % options.window == 0 || round == options.rounds) {
+      if (sink) sink->add_snapshot(window, round, rule->prices());
+      window.setZero();
+      ++result.snapshots;
+    }
+    if (progress) progress(round, options.rounds);
+  }
+  result.seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  result.rounds = options.rounds;
+  if (rule->prices()) result.final_prices = *rule->prices();
+  return result;
+}
+
+}  // namespace allocsim

@@ -1,0 +1,93 @@
+#include "allocsim/sim/hdf5_io.hpp"
+
+#include <algorithm>
+
+namespace allocsim {
+namespace {
+
+constexpr int kDeflateLevel = 4;
+
+H5::DSetCreatPropList compressed(int rank, const hsize_t* chunk) {
+  H5::DSetCreatPropList plist;
+  plist.setChunk(rank, chunk);
+  plist.setShuffle();
+  plist.setDeflate(kDeflateLevel);
+  return plist;
+}
+
+// About 1 MB per chunk of doubles, whole rows.
+hsize_t rows_per_chunk(hsize_t rows, hsize_t cols) {
+  return std::max<hsize_t>(1, std::min<hsize_t>(rows, 131072 / std::max<hsize_t>(1, cols)));
+}
+
+}  // namespace
+
+H5::StrType text_type() {
+  H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);
+  type.setCset(H5T_CSET_UTF8);
+  return type;
+}
+
+void set_text_attribute(H5::H5Object& target, const std::string& name, const std::string& value) {
+  if (target.attrExists(name)) target.removeAttr(name);
+  const H5::StrType type = text_type();
+  H5::Attribute attribute = target.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+  attribute.write(type, value);
+}
+
+void set_number_attribute(H5::H5Object& target, const std::string& name, double value) {
+  if (target.attrExists(name)) target.removeAttr(name);
+  H5::Attribute attribute =
+      target.createAttribute(name, H5::PredType::NATIVE_DOUBLE, H5::DataSpace(H5S_SCALAR));
+  attribute.write(H5::PredType::NATIVE_DOUBLE, &value);
+}
+
+void set_integer_attribute(H5::H5Object& target, const std::string& name, long long value) {
+  if (target.attrExists(name)) target.removeAttr(name);
+  H5::Attribute attribute =
+      target.createAttribute(name, H5::PredType::STD_I64LE, H5::DataSpace(H5S_SCALAR));
+  attribute.write(H5::PredType::NATIVE_LLONG, &value);
+}
+
+void write_matrix(H5::Group& group, const std::string& name, const Matrix& values) {
+  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()), static_cast<hsize_t>(values.cols())};
+  const hsize_t chunk[2] = {rows_per_chunk(dims[0], dims[1]), std::max<hsize_t>(1, dims[1])};
+  H5::DataSet ds = group.createDataSet(name, H5::PredType::IEEE_F64LE, H5::DataSpace(2, dims),
+                                       compressed(2, chunk));
+  ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+}
+
+void write_vector(H5::Group& group, const std::string& name, const Vector& values) {
+  const hsize_t dims[1] = {static_cast<hsize_t>(values.size())};
+  const hsize_t chunk[1] = {std::max<hsize_t>(1, std::min<hsize_t>(dims[0], 131072))};
+  H5::DataSet ds = group.createDataSet(name, H5::PredType::IEEE_F64LE, H5::DataSpace(1, dims),
+                                       compressed(1, chunk));
+  ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+}
+
+void write_access(H5::Group& group, const std::string& name, const AccessMask& values) {
+  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()), static_cast<hsize_t>(values.cols())};
+  const hsize_t chunk[2] = {std::max<hsize_t>(1, std::min<hsize_t>(dims[0], 1048576 / std::max<hsize_t>(1, dims[1]))),
+                            std::max<hsize_t>(1, dims[1])};
+  H5::DataSet ds = group.createDataSet(name, H5::PredType::STD_U8LE, H5::DataSpace(2, dims),
+                                       compressed(2, chunk));
+  ds.write(values.data(), H5::PredType::NATIVE_UINT8);
+}
+
+void write_integers(H5::Group& group, const std::string& name,
+                    const std::vector<long long>& values) {
+  const hsize_t dims[1] = {values.size()};
+  H5::DataSet ds = group.createDataSet(name, H5::PredType::STD_I64LE, H5::DataSpace(1, dims));
+  if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_LLONG);
+}
+
+void write_texts(H5::Group& group, const std::string& name, const std::vector<std::string>& values) {
+  const hsize_t dims[1] = {values.size()};
+  const H5::StrType type = text_type();
+  H5::DataSet ds = group.createDataSet(name, type, H5::DataSpace(1, dims));
+  std::vector<const char*> pointers;
+  for (const auto& v : values) pointers.push_back(v.c_str());
+  if (!values.empty()) ds.write(pointers.data(), type);
+}
+
+}  // namespace allocsim

@@ -1,0 +1,253 @@
+#include "allocsim/sim/scenario.hpp"
+
+#include <cmath>
+#include <vector>
+
+#include "allocsim/core/csv.hpp"
+#include "allocsim/core/error.hpp"
+#include "allocsim/core/random.hpp"
+
+namespace allocsim {
+namespace {
+
+template <typename Kind, std::size_t N>
+Kind kind_from_string(const std::string& text, const std::string& what,
+                      const std::pair<const char*, Kind> (&names)[N]) {
+  std::string valid;
+  for (const auto& [name, kind] : names) {
+    if (text == name) return kind;
+    valid += (valid.empty() ? "" : ", ") + std::string(name);
+  }
+  throw InputError(what, "unknown value '" + text + "' (valid: " + valid + ")");
+}
+
+const std::pair<const char*, GainsKind> kGainsNames[] = {
+    {"rank-product", GainsKind::rank_product}, {"trait-distance", GainsKind::trait_distance},
+    {"random", GainsKind::random},             {"features", GainsKind::features},
+    {"file", GainsKind::file}};
+const std::pair<const char*, MassKind> kMassNames[] = {{"uniform", MassKind::uniform},
+                                                       {"zipf", MassKind::zipf},
+                                                       {"lognormal", MassKind::lognormal},
+                                                       {"file", MassKind::file}};
+const std::pair<const char*, AccessKind> kAccessNames[] = {{"full", AccessKind::full},
+                                                           {"threshold", AccessKind::threshold},
+                                                           {"random", AccessKind::random},
+                                                           {"file", AccessKind::file}};
+
+template <typename Kind, std::size_t N>
+std::string kind_to_string(Kind kind, const std::pair<const char*, Kind> (&names)[N]) {
+  for (const auto& [name, k] : names) {
+    if (k == kind) return name;
+  }
+  return "?";
+}
+
+void require(bool ok, const char* key, const std::string& what) {
+  if (!ok) throw InputError(key, what);
+}
+
+Matrix gains_from_file(const ScenarioOptions& o) {
+  require(!o.gains_file.empty(), "scenario.gains_file", "is needed when scenario.gains = file");
+  Matrix gains = read_matrix_csv(o.gains_file).values;
+  const bool shape_given = o.agents > 0 || o.partners > 0;
+  if (shape_given && (gains.rows() != o.agents || gains.cols() != o.partners)) {
+    throw InputError(o.gains_file, "is " + std::to_string(gains.rows()) + "x" +
+                                       std::to_string(gains.cols()) +
+                                       " but scenario.agents x scenario.partners is " +
+                                       std::to_string(o.agents) + "x" +
+                                       std::to_string(o.partners));
+  }
+  return gains;
+}
+
+Matrix make_gains(const ScenarioOptions& o, std::uint64_t run, long n, long m) {
+  RandomStream rng(o.seed, run, StreamId::gains);
+  Matrix gains(n, m);
+  switch (o.gains) {
+    case GainsKind::rank_product:
+      for (long i = 0; i < n; ++i)
+        for (long j = 0; j < m; ++j)
+          gains(i, j) = (static_cast<double>(i + 1) / n) * (static_cast<double>(j + 1) / m);
+      break;
+    case GainsKind::trait_distance: {
+      Vector x(n), y(m);
+      for (long i = 0; i < n; ++i) x[i] = rng.uniform();
+      for (long j = 0; j < m; ++j) y[j] = rng.uniform();
+      for (long i = 0; i < n; ++i)
+        for (long j = 0; j < m; ++j) gains(i, j) = -std::pow(std::abs(x[i] - y[j]), o.gains_exponent);
+      break;
+    }
+    case GainsKind::random:
+      for (long i = 0; i < n; ++i)
+        for (long j = 0; j < m; ++j) gains(i, j) = rng.uniform();
+      break;
+    case GainsKind::features: {
+      const long k = o.gains_rank;
+      Matrix u(n, k), v(m, k);
+      for (long i = 0; i < n; ++i)
+        for (long c = 0; c < k; ++c) u(i, c) = rng.normal();
+      for (long j = 0; j < m; ++j)
+        for (long c = 0; c < k; ++c) v(j, c) = rng.normal();
+      gains = u * v.transpose() / std::sqrt(static_cast<double>(k));
+      break;
+    }
+    case GainsKind::file:
+      return gains_from_file(o);  // taken as given, not scaled
+  }
+  return gains * o.gains_scale;
+}
+
+Vector make_masses(MassKind kind, double exponent, double spread, const std::string& file,
+                   long size, RandomStream& rng, const char* file_key, const char* count_key) {
+  Vector mass(size);
+  switch (kind) {
+    case MassKind::uniform:
+      mass.setOnes();
+      break;
+    case MassKind::zipf:
+      for (long k = 0; k < size; ++k) mass[k] = std::pow(static_cast<double>(k + 1), -exponent);
+      break;
+    case MassKind::lognormal:
+      for (long k = 0; k < size; ++k) mass[k] = std::exp(spread * rng.normal());
+      break;
+    case MassKind::file: {
+      require(!file.empty(), file_key, "is needed when its generator is 'file'");
+      mass = read_vector_csv(file).values;
+      if (mass.size() != size) {
+        throw InputError(file, "has " + std::to_string(mass.size()) + " values but " + count_key +
+                                   " is " + std::to_string(size));
+      }
+      for (long k = 0; k < size; ++k) {
+        if (!(mass[k] > 0) || !std::isfinite(mass[k])) {
+          throw InputError(file, "value " + std::to_string(k + 1) +
+                                     " is not a positive number; every agent needs a budget "
+                                     "and every partner a capacity");
+        }
+      }
+      break;
+    }
+  }
+  return mass / mass.sum();
+}
+
+AccessMask threshold_access(RandomStream& rng, long n, long m) {
+  Vector capability(n), difficulty(m);
+  for (long i = 0; i < n; ++i) capability[i] = rng.uniform();
+  for (long j = 0; j < m; ++j) difficulty[j] = rng.uniform();
+  Eigen::Index best = 0, easiest = 0;
+  capability.maxCoeff(&best);
+  difficulty.minCoeff(&easiest);
+  capability[best] = 1.0;
+  difficulty[easiest] = 0.0;
+  AccessMask access(n, m);
+  for (long i = 0; i < n; ++i)
+    for (long j = 0; j < m; ++j) access(i, j) = capability[i] >= difficulty[j] ? 1 : 0;
+  return access;
+}
+
+AccessMask random_access(RandomStream& rng, long n, long m, double density) {
+  AccessMask access(n, m);
+  for (long i = 0; i < n; ++i)
+    for (long j = 0; j < m; ++j) access(i, j) = rng.uniform() < density ? 1 : 0;
+  for (long i = 0; i < n; ++i) {
+    if (access.row(i).cast<int>().sum() == 0) access(i, static_cast<long>(rng.below(m))) = 1;
+  }
+  for (long j = 0; j < m; ++j) {
+    if (access.col(j).cast<int>().sum() == 0) access(static_cast<long>(rng.below(n)), j) = 1;
+  }
+  return access;
+}
+
+void require_every_row_and_column_allowed(const AccessMask& access, const std::string& source) {
+  for (long i = 0; i < access.rows(); ++i) {
+    if (access.row(i).cast<int>().sum() == 0) {
+      throw InputError(source, "agent " + std::to_string(i + 1) +
+                                   " has no accessible partner (its row is all 0)");
+    }
+  }
+  for (long j = 0; j < access.cols(); ++j) {
+    if (access.col(j).cast<int>().sum() == 0) {
+      throw InputError(source, "partner " + std::to_string(j + 1) +
+                                   " has no agent that may use it (its column is all 0)");
+    }
+  }
+}
+
+}  // namespace
+
+std::string to_string(GainsKind kind) { return kind_to_string(kind, kGainsNames); }
+std::string to_string(MassKind kind) { return kind_to_string(kind, kMassNames); }
+std::string to_string(AccessKind kind) { return kind_to_string(kind, kAccessNames); }
+GainsKind gains_kind_from_string(const std::string& text, const std::string& where) {
+  return kind_from_string(text, where, kGainsNames);
+}
+MassKind mass_kind_from_string(const std::string& text, const std::string& where) {
+  return kind_from_string(text, where, kMassNames);
+}
+AccessKind access_kind_from_string(const std::string& text, const std::string& where) {
+  return kind_from_string(text, where, kAccessNames);
+}
+
+void ScenarioOptions::validate() const {
+  if (gains != GainsKind::file) {
+    require(agents >= 1, "scenario.agents", "must be at least 1");
+    require(partners >= 1, "scenario.partners", "must be at least 1");
+  }
+  require(gains_scale > 0 && std::isfinite(gains_scale), "scenario.gains_scale", "must be > 0");
+  require(gains_exponent > 0, "scenario.gains_exponent", "must be > 0");
+  require(gains_rank >= 1, "scenario.gains_rank", "must be at least 1");
+  require(budgets_exponent >= 0, "scenario.budgets_exponent", "must be >= 0");
+  require(budgets_spread >= 0, "scenario.budgets_spread", "must be >= 0");
+  require(capacities_exponent >= 0, "scenario.capacities_exponent", "must be >= 0");
+  require(capacities_spread >= 0, "scenario.capacities_spread", "must be >= 0");
+  require(access_density > 0 && access_density <= 1, "scenario.access_density",
+          "must be in (0, 1]");
+}
+
+TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
+  o.validate();
+  TransportProblem problem;
+  problem.gains = o.gains == GainsKind::file ? gains_from_file(o)
+                                             : make_gains(o, run, o.agents, o.partners);
+  const long n = problem.gains.rows(), m = problem.gains.cols();
+  RandomStream budget_rng(o.seed, run, StreamId::budgets);
+  problem.budgets = make_masses(o.budgets, o.budgets_exponent, o.budgets_spread, o.budgets_file,
+                                n, budget_rng, "scenario.budgets_file", "scenario.agents");
+  RandomStream capacity_rng(o.seed, run, StreamId::capacities);
+  problem.capacities =
+      make_masses(o.capacities, o.capacities_exponent, o.capacities_spread, o.capacities_file, m,
+                  capacity_rng, "scenario.capacities_file", "scenario.partners");
+  RandomStream access_rng(o.seed, run, StreamId::access);
+  switch (o.access) {
+    case AccessKind::full:
+      break;
+    case AccessKind::threshold:
+      problem.access = threshold_access(access_rng, n, m);
+      break;
+    case AccessKind::random:
+      problem.access = random_access(access_rng, n, m, o.access_density);
+      break;
+    case AccessKind::file: {
+      require(!o.access_file.empty(), "scenario.access_file",
+              "is needed when scenario.access = file");
+      AccessMask access = read_access_csv(o.access_file);
+      if (access.rows() != n || access.cols() != m) {
+        throw InputError(o.access_file, "is " + std::to_string(access.rows()) + "x" +
+                                            std::to_string(access.cols()) + " but the gains are " +
+                                            std::to_string(n) + "x" + std::to_string(m));
+      }
+      require_every_row_and_column_allowed(access, o.access_file);
+      problem.access = std::move(access);
+      break;
+    }
+  }
+  ProblemSources sources;
+  sources.gains = o.gains == GainsKind::file ? o.gains_file : "scenario.gains";
+  sources.budgets = o.budgets == MassKind::file ? o.budgets_file : "scenario.budgets";
+  sources.capacities = o.capacities == MassKind::file ? o.capacities_file : "scenario.capacities";
+  sources.access = o.access == AccessKind::file ? o.access_file : "scenario.access";
+  validate(problem, sources, 1e-9);
+  return problem;
+}
+
+}  // namespace allocsim
