@@ -1,0 +1,313 @@
+#include "allocsim/analysis/entropic_transport.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <limits>
+#include <sstream>
+
+#include "allocsim/analysis/exact_transport.hpp"
+#include "allocsim/core/error.hpp"
+
+namespace allocsim {
+namespace {
+
+constexpr double kMinusInfinity = -std::numeric_limits<double>::infinity();
+// Loose tolerance of the intermediate epsilon-scaling stages (relative L1
+// violation); the last stage runs to the requested tolerance.
+constexpr double kStageTolerance = 1e-3;
+// Kernel entries are kept at or above exp(-600) ~ 1e-261 (cells without
+// access are exactly 0): with u and v within [1e-30, 1e30] every product in
+// the matrix-vector loops stays a normal double, so the slow subnormal
+// arithmetic (about 100 times slower) never enters them.
+constexpr double kSmallestExponent = -600.0;
+// A kernel row or column sum below this is treated as underflowed.
+constexpr double kUnderflow = 1e-280;
+
+// The iteration state in normalised form: masses sum to 1 and gains are
+// shifted so that their largest allowed value is 0 (disallowed cells hold
+// -infinity). Then pi_ij = u_i K_ij v_j with K = exp((G + f + g) / eps).
+class SinkhornState {
+ public:
+  SinkhornState(const TransportProblem& problem, const EntropicOptions& options)
+      : options_(options),
+        mass_(problem.total_mass()),
+        r_(problem.budgets / mass_),
+        c_(problem.capacities / mass_) {
+    shifted_gains_ = problem.gains;
+    if (problem.access) {
+      access_ = problem.access->cast<double>();
+      shifted_gains_ = (access_.array() > 0).select(shifted_gains_, kMinusInfinity);
+    }
+    shift_ = shifted_gains_.maxCoeff();
+    shifted_gains_.array() -= shift_;
+    f_ = Vector::Zero(r_.size());
+    g_ = Vector::Zero(c_.size());
+  }
+
+  // Potentials of the original problem <-> the normalised, shifted one:
+  // pi = mass * exp((G + f + g)/eps) = exp((gains + f_orig + g)/eps) with
+  // f_orig = f - shift + eps * log(mass).
+  void set_potentials(const DualPotentials& warm, double eps) {
+    f_ = warm.agent.array() + shift_ - eps * std::log(mass_);
+    g_ = warm.partner;
+  }
+  DualPotentials potentials() const {
+    return {(f_.array() - shift_ + eps_ * std::log(mass_)).matrix(), g_};
+  }
+
+  // Runs Sinkhorn sweeps at `eps` until the violation is <= tolerance or the
+  // sweep budget is spent; returns true on convergence.
+  bool run_stage(double eps, double tolerance, long& sweeps_left) {
+    eps_ = eps;
+    rebuild_kernel();
+    columns_exact_ = false;
+    while (sweeps_left > 0) {
+      --sweeps_left;
+      ++sweeps_;
+      Kv_.noalias() = K_ * v_;
+      if (rows_underflow()) {
+        exact_row_update();
+        continue;
+      }
+      if (columns_exact_) {
+        violation_ = ((u_.array() * Kv_.array()) - r_.array()).abs().sum();
+        if (violation_ <= tolerance) return true;
+      }
+      u_ = r_.array() / Kv_.array();
+      KTu_.noalias() = K_.transpose() * u_;
+      if (columns_underflow()) {
+        exact_column_update();
+        continue;
+      }
+      v_ = c_.array() / KTu_.array();
+      columns_exact_ = true;
+      if (needs_absorption()) absorb_and_rebuild();
+    }
+    return false;
+  }
+
+  // The final coupling and its figures, in the original units.
+  void finish(EntropicResult& result, const Matrix& gains) {
+    absorb_and_rebuild();
+    result.coupling = K_ * mass_;
+    const Vector row = result.coupling.rowwise().sum();
+    const RowVector col = result.coupling.colwise().sum();
+    result.marginal_error = ((row / mass_ - r_).array().abs().sum() +
+                             (col.transpose() / mass_ - c_).array().abs().sum());
+    result.potentials = potentials();
+    result.epsilon = eps_;
+    result.total_gain = (result.coupling.array() * gains.array()).sum();
+    result.entropy = entropy(result.coupling);
+    result.primal_value = result.total_gain + eps_ * result.entropy;
+    result.dual_value = eps_ * result.coupling.sum() -
+                        result.potentials.agent.dot(r_ * mass_) -
+                        result.potentials.partner.dot(c_ * mass_);
+    result.iterations = sweeps_;
+    result.log_domain_updates = log_updates_;
+  }
+
+  double violation() const { return violation_; }
+
+ private:
+  // H(pi) = -sum pi (log pi - 1), with log pi from the potentials (no log of 0).
+  double entropy(const Matrix& coupling) const {
+    double sum = 0;
+    const double log_mass = std::log(mass_);
+    for (Eigen::Index i = 0; i < coupling.rows(); ++i) {
+      for (Eigen::Index j = 0; j < coupling.cols(); ++j) {
+        const double p = coupling(i, j);
+        if (p > 0) sum += p * ((shifted_gains_(i, j) + f_[i] + g_[j]) / eps_ + log_mass - 1.0);
+      }
+    }
+    return -sum;
+  }
+
+  void rebuild_kernel() {
+    // Row by row: Eigen vectorises exp on a contiguous row, not on a broadcast expression.
+    K_.resize(shifted_gains_.rows(), shifted_gains_.cols());
+    const double inverse = 1.0 / eps_;
+    for (Eigen::Index i = 0; i < K_.rows(); ++i) {
+      row_exponent_ = (shifted_gains_.row(i).array() + g_.transpose().array() + f_[i]) * inverse;
+      K_.row(i) = row_exponent_.max(kSmallestExponent).exp();
+    }
+    if (access_.size()) K_.array() *= access_.array();
+    u_ = Vector::Ones(r_.size());
+    v_ = Vector::Ones(c_.size());
+  }
+
+  bool needs_absorption() const {
+    const double t = options_.absorb_threshold;
+    return u_.maxCoeff() > t || v_.maxCoeff() > t || u_.minCoeff() < 1 / t ||
+           v_.minCoeff() < 1 / t;
+  }
+
+  void absorb_and_rebuild() {
+    f_.array() += eps_ * u_.array().log();
+    g_.array() += eps_ * v_.array().log();
+    rebuild_kernel();
+  }
+
+  bool rows_underflow() const { return !(Kv_.minCoeff() > kUnderflow) || !Kv_.allFinite(); }
+  bool columns_underflow() const { return !(KTu_.minCoeff() > kUnderflow) || !KTu_.allFinite(); }
+
+  // Where a kernel row has underflowed, the scaling form cannot proceed:
+  // f_i = eps log r_i - eps LSE_j((G_ij + g_j)/eps), exactly, in the log domain.
+  void exact_row_update() {
+    g_.array() += eps_ * v_.array().log();
+    for (Eigen::Index i = 0; i < r_.size(); ++i) {
+      f_[i] = eps_ * std::log(r_[i]) - eps_ * log_sum_exp(shifted_gains_.row(i).transpose() + g_);
+    }
+    ++log_updates_;
+    rebuild_kernel();
+    columns_exact_ = false;
+  }
+
+  // The same for columns: g_j = eps log c_j - eps LSE_i((G_ij + f_i)/eps).
+  void exact_column_update() {
+    f_.array() += eps_ * u_.array().log();
+    for (Eigen::Index j = 0; j < c_.size(); ++j) {
+      g_[j] = eps_ * std::log(c_[j]) - eps_ * log_sum_exp(shifted_gains_.col(j) + f_);
+    }
+    ++log_updates_;
+    rebuild_kernel();
+    columns_exact_ = true;
+  }
+
+  // log sum_k exp(x_k / eps), stable; -infinity entries contribute nothing.
+  double log_sum_exp(const Vector& x) const {
+    const double top = x.maxCoeff();
+    if (!std::isfinite(top)) return top;
+    return top / eps_ + std::log(((x.array() - top) / eps_).exp().sum());
+  }
+
+  const EntropicOptions& options_;
+  double mass_;
+  Vector r_, c_;
+  Matrix shifted_gains_, K_;
+  Matrix access_;  // 0/1 as doubles, empty when every pair is allowed
+  double shift_ = 0;
+  double eps_ = 1;
+  Vector f_, g_, u_, v_, Kv_, KTu_;
+  Eigen::ArrayXd row_exponent_;  // scratch row for rebuild_kernel
+  double violation_ = std::numeric_limits<double>::infinity();
+  long sweeps_ = 0;
+  long log_updates_ = 0;
+  bool columns_exact_ = false;  // true right after a column update: then only rows can be off
+};
+
+// The epsilon of the first stage: the gain range (where the kernel is
+// well conditioned), or where a warm start left off; never below the target.
+double first_stage_epsilon(const TransportProblem& problem, const EntropicOptions& options,
+                           double warm_epsilon) {
+  if (!options.epsilon_scaling) return options.epsilon;
+  const double start = warm_epsilon > 0 ? warm_epsilon : gain_range(problem);
+  return std::max(options.epsilon, start);
+}
+
+}  // namespace
+
+void EntropicOptions::validate() const {
+  if (!(epsilon > 0) || !std::isfinite(epsilon))
+    throw InputError("epsilon", "must be a positive finite number (gain units)");
+  if (!(tolerance > 0 && tolerance < 1)) throw InputError("tolerance", "must be in (0, 1)");
+  if (max_iterations < 1) throw InputError("max_iterations", "must be at least 1");
+  if (!(epsilon_shrink > 0 && epsilon_shrink < 1))
+    throw InputError("epsilon_shrink", "must be in (0, 1)");
+  if (!(absorb_threshold > 1)) throw InputError("absorb_threshold", "must be greater than 1");
+}
+
+std::string to_string(EntropicStatus status) {
+  switch (status) {
+    case EntropicStatus::converged: return "converged";
+    case EntropicStatus::not_converged: return "not_converged";
+    case EntropicStatus::infeasible: return "infeasible";
+  }
+  return "unknown";
+}
+
+EntropicStatus entropic_status_from_string(const std::string& text) {
+  for (auto s : {EntropicStatus::converged, EntropicStatus::not_converged,
+                 EntropicStatus::infeasible}) {
+    if (to_string(s) == text) return s;
+  }
+  throw InputError("status", "'" + text + "' is not one of converged, not_converged, infeasible");
+}
+
+double gain_range(const TransportProblem& problem) {
+  double low = std::numeric_limits<double>::infinity();
+  double high = -low;
+  for (Eigen::Index i = 0; i < problem.agents(); ++i) {
+    for (Eigen::Index j = 0; j < problem.partners(); ++j) {
+      if (!problem.allowed(i, j)) continue;
+      low = std::min(low, problem.gains(i, j));
+      high = std::max(high, problem.gains(i, j));
+    }
+  }
+  return high > low ? high - low : 0.0;
+}
+
+std::string EntropicResult::brief() const {
+  std::ostringstream out;
+  out.precision(6);
+  out << "entropic: " << to_string(status) << ", epsilon " << epsilon;
+  if (status == EntropicStatus::infeasible) {
+    out << " (" << message << ")";
+    return out.str();
+  }
+  out << ", total gain " << total_gain << ", " << iterations << " iterations in " << stages
+      << " stage" << (stages == 1 ? "" : "s");
+  if (log_domain_updates > 0) out << " (" << log_domain_updates << " log-domain updates)";
+  out << ", marginal error " << marginal_error << ", "
+      << seconds * 1e3 << " ms";
+  return out.str();
+}
+
+EntropicResult solve_entropic(const TransportProblem& problem, const EntropicOptions& options,
+                              const DualPotentials* warm_start, double warm_epsilon) {
+  options.validate();
+  const auto started = std::chrono::steady_clock::now();
+  EntropicResult result;
+  result.epsilon = options.epsilon;
+  if (problem.access) {
+    result.message = explain_infeasibility(problem);
+    if (!result.message.empty()) {
+      result.status = EntropicStatus::infeasible;
+      return result;
+    }
+  }
+
+  SinkhornState state(problem, options);
+  double eps = first_stage_epsilon(problem, options, warm_start ? warm_epsilon : 0);
+  if (warm_start) state.set_potentials(*warm_start, eps);
+  long sweeps_left = options.max_iterations;
+  bool converged = false;
+  for (;;) {
+    const bool last = eps <= options.epsilon;
+    ++result.stages;
+    const double tolerance = last ? options.tolerance : std::max(options.tolerance, kStageTolerance);
+    converged = state.run_stage(eps, tolerance, sweeps_left) && last;
+    if (last || sweeps_left == 0) break;
+    eps = std::max(options.epsilon, eps * options.epsilon_shrink);
+  }
+  state.finish(result, problem.gains);
+  if (!result.coupling.allFinite()) {
+    result.status = EntropicStatus::not_converged;
+    result.message = "the iterations left floating-point range; try a larger epsilon";
+  } else if (converged) {
+    result.status = EntropicStatus::converged;
+  } else {
+    result.status = EntropicStatus::not_converged;
+    std::ostringstream msg;
+    msg << "marginal violation " << result.marginal_error << " above tolerance "
+        << options.tolerance << " after " << result.iterations
+        << " iterations; raise max_iterations or epsilon";
+    if (eps > options.epsilon) msg << " (stopped at epsilon " << eps << ")";
+    result.message = msg.str();
+  }
+  result.seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  return result;
+}
+
+}  // namespace allocsim

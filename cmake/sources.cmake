@@ -1,0 +1,53 @@
+# The sources of each layer and of the program. One line per file; add a
+# file's line only once the file exists.
+
+allocsim_layer(core
+  SOURCES
+    core/atomic_file.cpp
+    core/csv.cpp
+    core/json.cpp
+    core/problem.cpp
+    core/random.cpp
+  LINKS Eigen3::Eigen)
+
+allocsim_layer(analysis
+  SOURCES
+    analysis/entropic_transport.cpp
+    analysis/exact_transport.cpp
+    analysis/binarize.cpp
+    analysis/nestedness.cpp
+    analysis/rankings.cpp
+    analysis/null_models.cpp
+  LINKS allocsim::core allocsim_lemon)
+
+allocsim_layer(sim
+  SOURCES
+    sim/engine.cpp
+    sim/gumbel_rule.cpp
+    sim/hdf5_io.cpp
+    sim/learn_rule.cpp
+    sim/price_rule.cpp
+    sim/queue_rule.cpp
+    sim/recorder.cpp
+    sim/rules.cpp
+    sim/scenario.cpp
+  LINKS allocsim::core hdf5::hdf5_cpp hdf5::hdf5)
+
+allocsim_layer(experiments
+  SOURCES
+    experiments/experiment.cpp
+    experiments/keys.cpp
+    experiments/results_file.cpp
+    experiments/simulation.cpp
+  LINKS allocsim::sim allocsim::analysis Boost::program_options)
+
+add_executable(allocsim
+  experiments/cli/commands.cpp
+  experiments/cli/main.cpp
+  experiments/cli/inspect_command.cpp
+  experiments/cli/options.cpp
+  experiments/cli/simulate_command.cpp
+  experiments/cli/solve_command.cpp)
+target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
+target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/experiments/cli)
+target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis Boost::program_options)

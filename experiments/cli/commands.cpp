@@ -1,0 +1,14 @@
+#include "commands.hpp"
+
+namespace allocsim::cli {
+
+const std::vector<Command>& all_commands() {
+  static const std::vector<Command> commands = {
+      {"solve", "exact or entropic transport from CSV files", solve_command},
+      {"simulate", "one simulated run of an experiment, written to HDF5", simulate_command},
+      {"inspect", "lists what a results file holds", inspect_command},
+  };
+  return commands;
+}
+
+}  // namespace allocsim::cli

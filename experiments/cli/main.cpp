@@ -1,0 +1,52 @@
+// allocsim: parse the subcommand, dispatch, report errors as one line.
+#include <exception>
+#include <iostream>
+#include <string>
+
+#include "allocsim/core/error.hpp"
+#include "commands.hpp"
+
+namespace {
+
+void print_overview() {
+  std::cout << "allocsim: agent-based allocation dynamics and optimal transport\n\n"
+               "usage: allocsim <command> [options]   (allocsim <command> --help for its options)\n\n"
+               "commands:\n";
+  for (const auto& command : allocsim::cli::all_commands()) {
+    std::cout << "  " << command.name << std::string(10 - std::string(command.name).size(), ' ')
+              << command.summary << "\n";
+  }
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  using namespace allocsim::cli;
+  if (argc < 2) {
+    print_overview();
+    return kExitUsage;
+  }
+  const std::string name = argv[1];
+  if (name == "--help" || name == "-h" || name == "help") {
+    print_overview();
+    return kExitOk;
+  }
+  if (name == "--version") {
+    std::cout << "allocsim " << ALLOCSIM_VERSION << "\n";
+    return kExitOk;
+  }
+  for (const auto& command : all_commands()) {
+    if (name != command.name) continue;
+    try {
+      return command.run(Arguments(argv + 2, argv + argc));
+    } catch (const allocsim::InputError& e) {
+      std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
+      return kExitUsage;
+    } catch (const std::exception& e) {
+      std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
+      return kExitProblem;
+    }
+  }
+  std::cerr << "allocsim: unknown command '" << name << "' (see 'allocsim --help')\n";
+  return kExitUsage;
+}

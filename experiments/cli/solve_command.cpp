@@ -1,0 +1,177 @@
+// allocsim solve: exact or entropic transport from CSV files.
+#include <iostream>
+#include <limits>
+#include <optional>
+
+#include "allocsim/analysis/entropic_transport.hpp"
+#include "allocsim/analysis/exact_transport.hpp"
+#include "allocsim/core/csv.hpp"
+#include "allocsim/core/error.hpp"
+#include "allocsim/core/json.hpp"
+#include "commands.hpp"
+#include "options.hpp"
+
+namespace allocsim::cli {
+namespace {
+
+struct SolveInputs {
+  TransportProblem problem;
+  ProblemSources sources;
+  std::vector<std::string> agent_labels, partner_labels;
+};
+
+// Labels given in two files must agree, or the rows were probably misaligned.
+void check_labels(const std::vector<std::string>& matrix_labels,
+                  const std::vector<std::string>& vector_labels, const std::string& vector_file,
+                  const std::string& matrix_file) {
+  if (matrix_labels.empty() || vector_labels.empty() || matrix_labels.size() != vector_labels.size())
+    return;
+  for (std::size_t k = 0; k < matrix_labels.size(); ++k) {
+    if (matrix_labels[k] != vector_labels[k]) {
+      throw InputError(vector_file, "label '" + vector_labels[k] + "' at position " +
+                                        std::to_string(k + 1) + " differs from '" +
+                                        matrix_labels[k] + "' in " + matrix_file +
+                                        "; put both files in the same order");
+    }
+  }
+}
+
+SolveInputs read_inputs(const po::variables_map& vm) {
+  SolveInputs in;
+  in.sources.gains = vm["gains"].as<std::string>();
+  in.sources.budgets = vm["budgets"].as<std::string>();
+  in.sources.capacities = vm["capacities"].as<std::string>();
+  LabeledMatrix gains = read_matrix_csv(in.sources.gains);
+  const LabeledVector budgets = read_vector_csv(in.sources.budgets);
+  const LabeledVector capacities = read_vector_csv(in.sources.capacities);
+  check_labels(gains.row_labels, budgets.labels, in.sources.budgets, in.sources.gains);
+  check_labels(gains.column_labels, capacities.labels, in.sources.capacities, in.sources.gains);
+  in.problem.gains = std::move(gains.values);
+  in.problem.budgets = budgets.values;
+  in.problem.capacities = capacities.values;
+  in.agent_labels = std::move(gains.row_labels);
+  in.partner_labels = std::move(gains.column_labels);
+  if (vm.count("access")) {
+    in.sources.access = vm["access"].as<std::string>();
+    in.problem.access = read_access_csv(in.sources.access);
+  }
+  if (vm.count("rescale")) {
+    validate(in.problem, in.sources, std::numeric_limits<double>::infinity());
+    rescale_capacities(in.problem);
+  }
+  validate(in.problem, in.sources);
+  return in;
+}
+
+struct SolveReport {
+  std::string status;
+  bool ok = false;
+  std::string message;
+  Matrix coupling;
+  JsonObject json;
+  std::string brief;
+};
+
+SolveReport solve_exactly(const TransportProblem& problem) {
+  const ExactResult r = solve_exact(problem);
+  SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {}, r.brief()};
+  report.json.add("status", report.status).add("method", "exact").add("total_gain", r.total_gain)
+      .add("iterations", 0).add("marginal_error", r.marginal_error)
+      .add("support_size", static_cast<long long>(r.support_size)).add("is_forest", r.support_is_forest)
+      .add_null("epsilon").add("seconds", r.seconds);
+  return report;
+}
+
+SolveReport solve_entropically(const TransportProblem& problem, const EntropicOptions& options) {
+  const EntropicResult r = solve_entropic(problem, options);
+  SolveReport report{to_string(r.status), r.converged(), r.message, r.coupling, {}, r.brief()};
+  const long long support = r.coupling.size() ? (r.coupling.array() > 0).count() : 0;
+  report.json.add("status", report.status).add("method", "entropic").add("total_gain", r.total_gain)
+      .add("iterations", static_cast<long long>(r.iterations)).add("marginal_error", r.marginal_error)
+      .add("support_size", support)
+      .add("is_forest", r.coupling.size() ? support_is_forest(r.coupling) : false)
+      .add("epsilon", r.epsilon).add("entropy", r.entropy).add("primal_value", r.primal_value)
+      .add("dual_value", r.dual_value).add("stages", static_cast<long long>(r.stages))
+      .add("seconds", r.seconds);
+  return report;
+}
+
+EntropicOptions entropic_options(const po::variables_map& vm, const TransportProblem& problem) {
+  EntropicOptions options;
+  const bool absolute = vm.count("epsilon") > 0;
+  const bool relative = vm.count("epsilon-of-range") > 0;
+  if (absolute == relative) {
+    throw InputError("allocsim solve", "--method entropic needs exactly one of --epsilon E "
+                                       "(gain units) or --epsilon-of-range R (share of the gain range)");
+  }
+  if (absolute) {
+    options.epsilon = vm["epsilon"].as<double>();
+  } else {
+    const double range = gain_range(problem);
+    options.epsilon = vm["epsilon-of-range"].as<double>() * (range > 0 ? range : 1.0);
+  }
+  options.tolerance = vm["tolerance"].as<double>();
+  options.max_iterations = vm["max-iterations"].as<long>();
+  try {
+    options.validate();
+  } catch (const InputError& e) {
+    throw InputError("--" + e.where(), std::string(e.what()).substr(e.where().size() + 2));
+  }
+  return options;
+}
+
+}  // namespace
+
+int solve_command(const Arguments& args) {
+  po::options_description options("options");
+  options.add_options()
+      ("gains", po::value<std::string>()->required(), "CSV matrix of gains (agents x partners)")
+      ("budgets", po::value<std::string>()->required(), "CSV vector of agent budgets")
+      ("capacities", po::value<std::string>()->required(), "CSV vector of partner capacities")
+      ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
+      ("method", po::value<std::string>()->default_value("exact"), "exact | entropic")
+      ("epsilon", po::value<double>(), "transport temperature in gain units (entropic)")
+      ("epsilon-of-range", po::value<double>(), "transport temperature as a share of the gain range")
+      ("tolerance", po::value<double>()->default_value(1e-9), "entropic: relative L1 marginal violation")
+      ("max-iterations", po::value<long>()->default_value(100000), "entropic: Sinkhorn iteration limit")
+      ("rescale", "scale the capacities so their total equals the budgets' total")
+      ("out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")
+      ("json", "print one JSON object on stdout instead of the summary line");
+  po::variables_map vm;
+  if (!parse_or_help(args, options, {}, vm, "solve",
+                     "--gains G.csv --budgets r.csv --capacities c.csv [--access A.csv] "
+                     "[--method exact|entropic] [--epsilon E] [--out P.csv] [--json]"))
+    return kExitOk;
+
+  const std::string method = vm["method"].as<std::string>();
+  if (method != "exact" && method != "entropic") {
+    throw InputError("--method", "'" + method + "' is not one of exact, entropic");
+  }
+  const SolveInputs in = read_inputs(vm);
+  const SolveReport report = method == "exact"
+                                 ? solve_exactly(in.problem)
+                                 : solve_entropically(in.problem, entropic_options(vm, in.problem));
+  const bool coupling_to_stdout = vm.count("out") && vm["out"].as<std::string>() == "-";
+  if (vm.count("json")) {
+    JsonObject json = report.json;
+    if (!report.message.empty()) json.add("message", report.message);
+    std::cout << json.str() << "\n";
+  } else {
+    (coupling_to_stdout ? std::cerr : std::cout) << report.brief << "\n";
+  }
+  if (!report.ok) {
+    const std::string where = report.status == "infeasible" ? in.sources.access : "allocsim solve";
+    std::cerr << "allocsim solve: error: " << where << ": " << report.status << ": "
+              << report.message << "\n";
+    return kExitProblem;
+  }
+  if (coupling_to_stdout && !vm.count("json")) {
+    write_matrix_csv(std::cout, report.coupling, in.agent_labels, in.partner_labels);
+  } else if (vm.count("out")) {
+    write_matrix_csv(vm["out"].as<std::string>(), report.coupling, in.agent_labels,
+                     in.partner_labels);
+  }
+  return kExitOk;
+}
+
+}  // namespace allocsim::cli

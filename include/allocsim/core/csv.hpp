@@ -1,0 +1,55 @@
+// Matrices and vectors as CSV files.
+//
+// Numbers are separated by commas. A first row that holds any non-numeric
+// cell is read as column labels; a first column that holds any non-numeric
+// cell (below the label row) is read as row labels. Empty lines and lines
+// starting with '#' are skipped. NaN, Inf, ragged rows and text in numeric
+// cells are InputErrors that name the file, line and column.
+#pragma once
+
+#include <iosfwd>
+#include <string>
+#include <vector>
+
+#include "allocsim/core/matrix.hpp"
+
+namespace allocsim {
+
+struct LabeledMatrix {
+  Matrix values;
+  std::vector<std::string> row_labels;     // empty when the file has none
+  std::vector<std::string> column_labels;  // empty when the file has none
+};
+
+struct LabeledVector {
+  Vector values;
+  std::vector<std::string> labels;  // empty when the file has none
+};
+
+LabeledMatrix read_matrix_csv(const std::string& path);
+
+// One value per line, or one row of values (with optional labels).
+LabeledVector read_vector_csv(const std::string& path);
+
+// 0/1 matrix; any other value is an InputError.
+AccessMask read_access_csv(const std::string& path);
+
+// Writes atomically (temporary file, then rename): the file either appears
+// complete or not at all. Labels are written when given. Numbers use the
+// shortest representation that reads back exactly.
+void write_matrix_csv(const std::string& path, const Matrix& values,
+                      const std::vector<std::string>& row_labels = {},
+                      const std::vector<std::string>& column_labels = {});
+
+// The same layout, written to a stream (e.g. stdout).
+void write_matrix_csv(std::ostream& out, const Matrix& values,
+                      const std::vector<std::string>& row_labels = {},
+                      const std::vector<std::string>& column_labels = {});
+
+// Parses one CSV record (double quotes allowed around a field); exposed for tests.
+std::vector<std::string> split_csv_record(const std::string& line);
+
+// Formats a double so that it reads back to the same value.
+std::string format_number(double value);
+
+}  // namespace allocsim

@@ -1,0 +1,33 @@
+// Errors about user input (files, options, config keys).
+//
+// Problem outcomes (infeasible, not converged, boundary estimate) are values
+// in result structs, not exceptions. InputError is for input the tool cannot
+// use; its message always starts with where the problem is ("gains.csv:4",
+// "--epsilon", "exp.ini:12: dynamics.rule") so the command line can print it
+// as one line.
+#pragma once
+
+#include <stdexcept>
+#include <string>
+
+namespace allocsim {
+
+class InputError : public std::runtime_error {
+ public:
+  // `where` names the file (and line), option or key; `what` says what is
+  // wrong and, where possible, what to do.
+  InputError(const std::string& where, const std::string& what)
+      : std::runtime_error(where.empty() ? what : where + ": " + what), where_(where) {}
+
+  const std::string& where() const { return where_; }
+
+ private:
+  std::string where_;
+};
+
+// "file:line" (line counted from 1), or just "file" when line is 0.
+inline std::string location(const std::string& file, long line = 0) {
+  return line > 0 ? file + ":" + std::to_string(line) : file;
+}
+
+}  // namespace allocsim
