@@ -2,6 +2,7 @@
 
 #include <sstream>
 
+#include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/sim/hdf5_io.hpp"
 #include "allocsim/sim/recorder.hpp"
@@ -61,6 +62,7 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
   H5::Group group = file.create_run(run);
   write_run_parameters(group, values, "running");
   set_integer_attribute(group, "run_index", static_cast<long long>(run_index));
+  set_text_attribute(group, "feasible", explain_infeasibility(problem).empty() ? "true" : "false");
   write_scenario(group, problem);
   AllocationRecorder recorder(group, problem.agents(), problem.partners());
   const RunResult result =
@@ -88,6 +90,7 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
   report.run = run_name(0);
   report.agents = check.agents();
   report.partners = check.partners();
+  report.infeasibility = explain_infeasibility(check);
   try {
     ResultsFile file(report.output_file, values.to_ini(), request.tool_version);
     report.result = record_run(file, report.run, 0, values, settings, request.progress);

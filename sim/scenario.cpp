@@ -1,5 +1,6 @@
 #include "allocsim/sim/scenario.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <vector>
 
@@ -130,15 +131,56 @@ Vector make_masses(MassKind kind, double exponent, double spread, const std::str
   return mass / mass.sum();
 }
 
-AccessMask threshold_access(RandomStream& rng, long n, long m) {
+// Lowers difficulties (hardest partner first) until every set of hardest
+// partners fits the agents that can reach it with room to spare:
+// capacity(partners with d >= d_j) <= (1 - kThresholdSlack) * budget(agents
+// with a >= d_j). For a nested mask this is Gale's supply-demand condition,
+// so the problem is feasible.
+constexpr double kThresholdSlack = 0.1;
+
+void make_threshold_feasible(const Vector& capability, Vector& difficulty, const Vector& budgets,
+                             const Vector& capacities) {
+  const long n = capability.size(), m = difficulty.size();
+  std::vector<long> agents(static_cast<std::size_t>(n)), partners(static_cast<std::size_t>(m));
+  for (long i = 0; i < n; ++i) agents[static_cast<std::size_t>(i)] = i;
+  for (long j = 0; j < m; ++j) partners[static_cast<std::size_t>(j)] = j;
+  std::sort(agents.begin(), agents.end(),
+            [&](long a, long b) { return capability[a] > capability[b]; });
+  std::sort(partners.begin(), partners.end(),
+            [&](long a, long b) { return difficulty[a] > difficulty[b]; });
+  double capacity_so_far = 0, budget_reached = 0, ceiling = 1.0;
+  std::size_t reached = 0;  // agents[0..reached) have capability >= current difficulty
+  for (std::size_t k = 0; k < partners.size(); ++k) {
+    const long j = partners[k];
+    difficulty[j] = std::min(difficulty[j], ceiling);
+    capacity_so_far += capacities[j];
+    const bool last = k + 1 == partners.size();
+    auto fits = [&] {
+      return last ? reached == agents.size()
+                  : capacity_so_far <= (1 - kThresholdSlack) * budget_reached;
+    };
+    while (reached < agents.size() && capability[agents[reached]] >= difficulty[j]) {
+      budget_reached += budgets[agents[reached++]];
+    }
+    while (!fits() && reached < agents.size()) {
+      difficulty[j] = capability[agents[reached]];
+      while (reached < agents.size() && capability[agents[reached]] >= difficulty[j]) {
+        budget_reached += budgets[agents[reached++]];
+      }
+    }
+    ceiling = difficulty[j];
+  }
+}
+
+AccessMask threshold_access(RandomStream& rng, const Vector& budgets, const Vector& capacities) {
+  const long n = budgets.size(), m = capacities.size();
   Vector capability(n), difficulty(m);
   for (long i = 0; i < n; ++i) capability[i] = rng.uniform();
   for (long j = 0; j < m; ++j) difficulty[j] = rng.uniform();
-  Eigen::Index best = 0, easiest = 0;
+  Eigen::Index best = 0;
   capability.maxCoeff(&best);
-  difficulty.minCoeff(&easiest);
   capability[best] = 1.0;
-  difficulty[easiest] = 0.0;
+  make_threshold_feasible(capability, difficulty, budgets, capacities);
   AccessMask access(n, m);
   for (long i = 0; i < n; ++i)
     for (long j = 0; j < m; ++j) access(i, j) = capability[i] >= difficulty[j] ? 1 : 0;
@@ -222,7 +264,7 @@ TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
     case AccessKind::full:
       break;
     case AccessKind::threshold:
-      problem.access = threshold_access(access_rng, n, m);
+      problem.access = threshold_access(access_rng, problem.budgets, problem.capacities);
       break;
     case AccessKind::random:
       problem.access = random_access(access_rng, n, m, o.access_density);

@@ -114,6 +114,11 @@ int simulate_command(const Arguments& args) {
   if (!vm.count("quiet")) request.progress = stderr_progress();
   H5::Exception::dontPrint();
   const SimulationReport report = simulate_to_file(values, request);
+  if (!report.infeasibility.empty()) {
+    std::cerr << "allocsim simulate: warning: no coupling meets the budgets and capacities under "
+                 "the access mask (" << report.infeasibility << "); prices drift and queue leaves "
+                 "units unplaced\n";
+  }
 
   if (vm.count("json")) {
     JsonObject json;

@@ -54,12 +54,21 @@ struct ExactResult {
   std::string brief() const;
 };
 
+// Throws InputError for an invalid problem (see validate()) or options.
+// Infeasible access masks give status infeasible with the reason in words.
+// When the problem is feasible within the tolerance of explain_infeasibility
+// but the rounded masses are not (a group that exactly fills its partners),
+// the coupling ships what the rounded network can carry: the marginals are
+// then met to a few units of total/mass_units.
 ExactResult solve_exact(const TransportProblem& problem, const ExactOptions& options = {});
 
 // When no coupling can meet the marginals under the access mask, says why in
 // words (an agent or partner with no allowed pair, or a group of agents whose
 // budgets exceed what their allowed partners can take, or the converse);
-// returns an empty string when the problem is feasible.
+// returns an empty string when the problem is feasible. Groups are found by
+// a max-flow / min-cut on agents -> partners; a shortfall of the max flow
+// below 1e-9 of the total mass is taken for rounding, i.e. feasible. Indices
+// in the message count from 1.
 std::string explain_infeasibility(const TransportProblem& problem);
 
 // True when the bipartite graph of the positive cells (value > threshold) has no cycle.

@@ -12,7 +12,9 @@
 // degrees. A part with no pairs (one row, or one column) is 0.
 //
 // WNODF (Almeida-Neto & Ulrich 2011, Environmental Modelling & Software
-// 26:173-178) on a non-negative weighted matrix W. With F_a the number of
+// 26:173-178; definition from memory, consistent with the characterisation
+// of perfect WNODF by Britton, Almeida-Neto & Corso 2016, Biomath) on a
+// non-negative weighted matrix W. With F_a the number of
 // non-zero cells of row a, a pair a above b with F_a > F_b > 0 scores
 //     N_ab = 100 * k_ab / F_b,
 // k_ab = number of cells l with 0 < W_bl < W_al (the lower row's weight is
@@ -20,7 +22,7 @@
 // as for NODF.
 //
 // Order: `by-degree` (the default) places rows and columns in decreasing
-// order of degree (fill), as in both papers' analyses; pairs of equal degree
+// order of degree (fill), common practice; pairs of equal degree
 // score 0 in any order, so the result does not depend on how ties are
 // broken. `as-given` scores the matrix in its own order.
 //

@@ -26,6 +26,9 @@ struct SimulationReport {
   std::string run;                 // e.g. run-000000
   long agents = 0, partners = 0;
   RunResult result;
+  // Why no coupling meets the budgets and capacities under the access mask
+  // (then prices drift and queue leaves units unplaced); empty when feasible.
+  std::string infeasibility;
 
   // One line for the command line.
   std::string brief() const;
@@ -38,7 +41,8 @@ void write_run_parameters(H5::Group& run_group, const ExperimentValues& values,
                           const std::string& status);
 
 // Builds the scenario of run `run_index`, plays the dynamics and writes
-// /runs/<run>/ (parameters, scenario, allocation, prices, empty analysis).
+// /runs/<run>/ (parameters, scenario, allocation, prices, empty analysis;
+// attribute feasible = "true" | "false" from the transport module's check).
 RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t run_index,
                      const ExperimentValues& values, const SimulationSettings& settings,
                      const ProgressCallback& progress);

@@ -22,11 +22,16 @@
 //   full            every pair.
 //   threshold       capability a_i and difficulty d_j ~ Uniform(0,1); allowed
 //                   when a_i >= d_j. Nested by construction. The most capable
-//                   agent gets capability 1 and the easiest partner difficulty
-//                   0, so nobody is left without a partner.
+//                   agent gets capability 1; then, hardest partner first, a
+//                   difficulty is lowered to the next agent's capability until
+//                   the hardest partners' capacities fit within 90% of the
+//                   budgets of the agents that reach them (the easiest partner
+//                   ends up open to every agent). For a nested mask that is
+//                   Gale's supply-demand condition: the problem is feasible.
 //   random          each pair allowed with probability access_density; an
 //                   agent (partner) left with no pair gets one partner (agent)
-//                   drawn uniformly.
+//                   drawn uniformly. May be infeasible for unequal masses (no
+//                   coupling meets the marginals); the experiment layer warns.
 //   file            a 0/1 CSV matrix, agents x partners.
 #pragma once
 
