@@ -101,7 +101,7 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
   const bool absolute = vm.count("epsilon") > 0;
   const bool relative = vm.count("epsilon-of-range") > 0;
   if (absolute == relative) {
-    throw InputError("allocsim solve", "--method entropic needs exactly one of --epsilon E "
+    throw InputError("--method entropic", "needs exactly one of --epsilon E "
                                        "(gain units) or --epsilon-of-range R (share of the gain range)");
   }
   if (absolute) {
@@ -132,7 +132,7 @@ int solve_command(const Arguments& args) {
       ("method", po::value<std::string>()->default_value("exact"), "exact | entropic")
       ("epsilon", po::value<double>(), "transport temperature in gain units (entropic)")
       ("epsilon-of-range", po::value<double>(), "transport temperature as a share of the gain range")
-      ("tolerance", po::value<double>()->default_value(1e-9), "entropic: relative L1 marginal violation")
+      ("tolerance", po::value<double>()->default_value(1e-9, "1e-9"), "entropic: relative L1 marginal violation")
       ("max-iterations", po::value<long>()->default_value(100000), "entropic: Sinkhorn iteration limit")
       ("rescale", "scale the capacities so their total equals the budgets' total")
       ("out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")
@@ -156,11 +156,11 @@ int solve_command(const Arguments& args) {
     JsonObject json = report.json;
     if (!report.message.empty()) json.add("message", report.message);
     std::cout << json.str() << "\n";
-  } else {
+  } else if (report.ok) {
     (coupling_to_stdout ? std::cerr : std::cout) << report.brief << "\n";
   }
   if (!report.ok) {
-    const std::string where = report.status == "infeasible" ? in.sources.access : "allocsim solve";
+    const std::string where = report.status == "infeasible" ? in.sources.access : "--method " + method;
     std::cerr << "allocsim solve: error: " << where << ": " << report.status << ": "
               << report.message << "\n";
     return kExitProblem;
