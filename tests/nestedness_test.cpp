@@ -199,8 +199,8 @@ TEST_CASE("packed NODF equals the pair-by-pair definition across word boundaries
 
 TEST_CASE("WNODF matches hand computations from the definition of Almeida-Neto & Ulrich 2011") {
   // Almeida-Neto & Ulrich 2011, Environmental Modelling & Software 26:173,
-  // definition of WNODF: for F_a > F_b, N_ab = 100 * (cells where
-  // 0 < W_b < W_a) / F_b; otherwise 0.
+  // definition of WNODF (from memory): for fills F_a > F_b,
+  // N_ab = 100 * (cells where 0 < W_b < W_a) / F_b; otherwise 0.
   SECTION("strictly decreasing weights") {
     // r1 = 5 4 3 2 (F 4), r2 = 3 2 1 0 (F 3), r3 = 4 0 0 0 (F 1).
     // Rows: r1r2 3/3, r1r3 (4 < 5) 1/1, r2r3 (4 < 3 fails) 0/1 -> 200/3.

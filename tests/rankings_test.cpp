@@ -2,7 +2,9 @@
 
 #include <algorithm>
 #include <catch2/catch.hpp>
+#include <chrono>
 #include <fstream>
+#include <iostream>
 #include <numeric>
 #include <random>
 #include <string>
@@ -199,4 +201,23 @@ TEST_CASE("ranking status words read back") {
                  ComplexityIndexStatus::no_links})
     CHECK(complexity_index_status_from_string(to_string(s)) == s);
   CHECK_THROWS_AS(fitness_complexity_status_from_string("done"), InputError);
+}
+
+TEST_CASE("Fitness-Complexity and ECI timings on 1000 x 1000", "[.][timing]") {
+  std::mt19937_64 rng(7);
+  std::bernoulli_distribution link(0.3);
+  BinaryMatrix m(1000, 1000);
+  for (Eigen::Index i = 0; i < m.rows(); ++i)
+    for (Eigen::Index j = 0; j < m.cols(); ++j) m(i, j) = link(rng) ? 1 : 0;
+  auto start = std::chrono::steady_clock::now();
+  const FitnessComplexityResult fc = fitness_complexity(m);
+  const double fc_seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  start = std::chrono::steady_clock::now();
+  const ComplexityIndexResult eci = economic_complexity_index(m);
+  const double eci_seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  std::cout << "1000x1000 density 0.3: " << fc.brief() << " in " << fc_seconds << " s; "
+            << eci.brief() << " in " << eci_seconds << " s\n";
+  CHECK(fc.iterations > 0);
 }
