@@ -1,0 +1,146 @@
+#include "allocsim/experiments/sweep.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <regex>
+
+#include "allocsim/core/error.hpp"
+
+namespace allocsim {
+namespace {
+
+std::string trim(const std::string& s) {
+  const auto first = s.find_first_not_of(" \t");
+  if (first == std::string::npos) return "";
+  return s.substr(first, s.find_last_not_of(" \t") - first + 1);
+}
+
+double parse_real(const std::string& text, const std::string& where, const std::string& spec) {
+  char* end = nullptr;
+  const std::string t = trim(text);
+  const double value = std::strtod(t.c_str(), &end);
+  if (t.empty() || *end != '\0' || !std::isfinite(value)) {
+    throw InputError(where, "'" + t + "' in '" + spec + "' is not a finite number");
+  }
+  return value;
+}
+
+// 12 significant digits: enough for any sweep, and free of rounding noise
+// such as 0.30000000000000004.
+std::string sweep_number(double value) {
+  char buffer[32];
+  std::snprintf(buffer, sizeof buffer, "%.12g", value);
+  return buffer;
+}
+
+std::vector<std::string> spaced_values(const std::string& kind, const std::smatch& m,
+                                       const std::string& where, const std::string& spec) {
+  const double start = parse_real(m[2], where, spec);
+  const double stop = parse_real(m[3], where, spec);
+  const double count_value = parse_real(m[4], where, spec);
+  const long count = static_cast<long>(count_value);
+  if (count < 1 || count != count_value) {
+    throw InputError(where, "the count in '" + spec + "' must be a whole number >= 1");
+  }
+  if (kind == "log" && !(start > 0 && stop > 0)) {
+    throw InputError(where, "log spacing needs start and stop > 0 in '" + spec + "'");
+  }
+  std::vector<std::string> values;
+  for (long k = 0; k < count; ++k) {
+    const double t = count == 1 ? 0.0 : static_cast<double>(k) / static_cast<double>(count - 1);
+    const double value = kind == "log"
+                             ? std::pow(10.0, std::log10(start) + t * (std::log10(stop) - std::log10(start)))
+                             : start + t * (stop - start);
+    values.push_back(sweep_number(value));
+  }
+  return values;
+}
+
+std::vector<std::string> integer_range(long long first, long long last, const std::string& where) {
+  constexpr long long kMostValues = 1000000;
+  const long long step = first <= last ? 1 : -1;
+  if ((last - first) * step >= kMostValues) {
+    throw InputError(where, "the range spans more than a million values");
+  }
+  std::vector<std::string> values;
+  for (long long v = first;; v += step) {
+    values.push_back(std::to_string(v));
+    if (v == last) break;
+  }
+  return values;
+}
+
+}  // namespace
+
+std::string to_string(SweepCombine combine) {
+  return combine == SweepCombine::grid ? "grid" : "zip";
+}
+
+SweepCombine sweep_combine_from_string(const std::string& text, const std::string& where) {
+  if (text == "grid") return SweepCombine::grid;
+  if (text == "zip") return SweepCombine::zip;
+  throw InputError(where, "combine is '" + text + "'; use grid or zip");
+}
+
+std::vector<std::string> expand_sweep_values(const std::string& spec, const std::string& where) {
+  static const std::regex spaced(R"(^\s*(linear|log)\s*\(([^,]*),([^,]*),([^,]*)\)\s*$)");
+  static const std::regex range(R"(^\s*(-?\d+)\s*\.\.\s*(-?\d+)\s*$)");
+  std::smatch m;
+  if (std::regex_match(spec, m, spaced)) return spaced_values(m[1], m, where, spec);
+  if (std::regex_match(spec, m, range)) {
+    return integer_range(std::stoll(m[1]), std::stoll(m[2]), where);
+  }
+  if (spec.find('(') != std::string::npos || spec.find("..") != std::string::npos) {
+    throw InputError(where, "'" + spec +
+                                "' is not a sweep; write a list (a, b, c), a range (1..20), "
+                                "linear(start, stop, count) or log(start, stop, count)");
+  }
+  std::vector<std::string> values;
+  std::size_t begin = 0;
+  for (;;) {
+    const std::size_t comma = spec.find(',', begin);
+    const std::string item = trim(spec.substr(begin, comma - begin));
+    if (item.empty()) throw InputError(where, "'" + spec + "' has an empty item");
+    values.push_back(item);
+    if (comma == std::string::npos) break;
+    begin = comma + 1;
+  }
+  return values;
+}
+
+std::vector<SweepPoint> sweep_points(const std::vector<SweepAxis>& axes, SweepCombine combine,
+                                     long replicates) {
+  std::vector<std::vector<std::pair<std::string, std::string>>> settings(1);
+  if (combine == SweepCombine::zip && !axes.empty()) {
+    const std::size_t length = axes.front().values.size();
+    for (const auto& axis : axes) {
+      if (axis.values.size() != length) {
+        throw InputError(axis.where, "combine = zip needs axes of equal length, but " + axis.key +
+                                         " has " + std::to_string(axis.values.size()) +
+                                         " values and " + axes.front().key + " has " +
+                                         std::to_string(length));
+      }
+    }
+    settings.assign(length, {});
+    for (std::size_t k = 0; k < length; ++k)
+      for (const auto& axis : axes) settings[k].emplace_back(axis.key, axis.values[k]);
+  } else {
+    for (const auto& axis : axes) {
+      std::vector<std::vector<std::pair<std::string, std::string>>> next;
+      for (const auto& partial : settings) {
+        for (const auto& value : axis.values) {
+          next.push_back(partial);
+          next.back().emplace_back(axis.key, value);
+        }
+      }
+      settings = std::move(next);
+    }
+  }
+  std::vector<SweepPoint> points;
+  for (const auto& s : settings)
+    for (long r = 0; r < replicates; ++r) points.push_back({s, r});
+  return points;
+}
+
+}  // namespace allocsim
