@@ -34,10 +34,14 @@ std::string format_threshold(double t) {
 
 std::string to_string(BinarizeRule rule) {
   switch (rule) {
-    case BinarizeRule::positive: return "positive";
-    case BinarizeRule::row_share: return "row-share";
-    case BinarizeRule::min_count: return "min-count";
-    case BinarizeRule::revealed_advantage: return "revealed-advantage";
+    case BinarizeRule::positive:
+      return "positive";
+    case BinarizeRule::row_share:
+      return "row-share";
+    case BinarizeRule::min_count:
+      return "min-count";
+    case BinarizeRule::revealed_advantage:
+      return "revealed-advantage";
   }
   return "unknown";
 }
@@ -53,10 +57,14 @@ BinarizeRule binarize_rule_from_string(const std::string& text) {
 
 double default_threshold(BinarizeRule rule) {
   switch (rule) {
-    case BinarizeRule::positive: return 0.0;
-    case BinarizeRule::row_share: return 0.05;
-    case BinarizeRule::min_count: return 1.0;
-    case BinarizeRule::revealed_advantage: return 1.0;
+    case BinarizeRule::positive:
+      return 0.0;
+    case BinarizeRule::row_share:
+      return 0.05;
+    case BinarizeRule::min_count:
+      return 1.0;
+    case BinarizeRule::revealed_advantage:
+      return 1.0;
   }
   return 0.0;
 }
@@ -91,9 +99,15 @@ BinaryMatrix binarize(const Matrix& allocation, const BinarizeOptions& options) 
       const double p = allocation(i, j);
       bool link = false;
       switch (options.rule) {
-        case BinarizeRule::positive: link = p > t; break;
-        case BinarizeRule::row_share: link = rows(i) > 0 && p / rows(i) >= t; break;
-        case BinarizeRule::min_count: link = p >= t; break;
+        case BinarizeRule::positive:
+          link = p > t;
+          break;
+        case BinarizeRule::row_share:
+          link = rows(i) > 0 && p / rows(i) >= t;
+          break;
+        case BinarizeRule::min_count:
+          link = p >= t;
+          break;
         case BinarizeRule::revealed_advantage:
           link = rows(i) > 0 && cols(j) > 0 && p * total / (rows(i) * cols(j)) >= t;
           break;
@@ -107,9 +121,12 @@ BinaryMatrix binarize(const Matrix& allocation, const BinarizeOptions& options) 
 std::string describe(const BinarizeOptions& options) {
   const std::string t = format_threshold(options.threshold_value());
   switch (options.rule) {
-    case BinarizeRule::positive: return "link when cell > " + t + " (positive)";
-    case BinarizeRule::row_share: return "link when cell / row total >= " + t + " (row-share)";
-    case BinarizeRule::min_count: return "link when cell >= " + t + " (min-count)";
+    case BinarizeRule::positive:
+      return "link when cell > " + t + " (positive)";
+    case BinarizeRule::row_share:
+      return "link when cell / row total >= " + t + " (row-share)";
+    case BinarizeRule::min_count:
+      return "link when cell >= " + t + " (min-count)";
     case BinarizeRule::revealed_advantage:
       return "link when P_ij*sum(P)/(row_i*col_j) >= " + t + " (revealed-advantage)";
   }
@@ -118,9 +135,7 @@ std::string describe(const BinarizeOptions& options) {
 
 Matrix to_matrix(const BinaryMatrix& links) { return links.cast<double>(); }
 
-Eigen::VectorXi row_degrees(const BinaryMatrix& links) {
-  return links.cast<int>().rowwise().sum();
-}
+Eigen::VectorXi row_degrees(const BinaryMatrix& links) { return links.cast<int>().rowwise().sum(); }
 
 Eigen::VectorXi column_degrees(const BinaryMatrix& links) {
   return links.cast<int>().colwise().sum().transpose();

@@ -151,8 +151,7 @@ void check_weights(const Matrix& weights) {
     for (Index j = 0; j < weights.cols(); ++j)
       if (!std::isfinite(weights(i, j)) || weights(i, j) < 0)
         throw InputError("weights", "entry at row " + std::to_string(i + 1) + ", column " +
-                                        std::to_string(j + 1) +
-                                        " must be finite and non-negative");
+                                        std::to_string(j + 1) + " must be finite and non-negative");
 }
 
 }  // namespace
@@ -164,8 +163,10 @@ double connectance(const BinaryMatrix& links) {
 
 std::string to_string(PairOrder order) {
   switch (order) {
-    case PairOrder::by_degree: return "by-degree";
-    case PairOrder::as_given: return "as-given";
+    case PairOrder::by_degree:
+      return "by-degree";
+    case PairOrder::as_given:
+      return "as-given";
   }
   return "unknown";
 }
@@ -194,8 +195,8 @@ NestednessParts wnodf(const Matrix& weights, PairOrder order) {
 double spectral_radius(const Matrix& biadjacency) {
   if (biadjacency.size() == 0) return 0.0;
   const Eigen::MatrixXd a = biadjacency;
-  const Eigen::MatrixXd gram =
-      a.rows() >= a.cols() ? Eigen::MatrixXd(a.transpose() * a) : Eigen::MatrixXd(a * a.transpose());
+  const Eigen::MatrixXd gram = a.rows() >= a.cols() ? Eigen::MatrixXd(a.transpose() * a)
+                                                    : Eigen::MatrixXd(a * a.transpose());
   const bool nonnegative = (a.array() >= 0).all();
   return std::sqrt(nonnegative ? largest_eigenvalue_nonnegative_psd(gram)
                                : dense_largest_eigenvalue(gram));

@@ -92,7 +92,8 @@ DegreeClasses group_by_degree(const std::vector<double>& degree, const std::vect
 }
 
 // Expected degree of each class given the values of both sides.
-std::vector<double> expected_degrees(const std::vector<double>& own, const std::vector<double>& other,
+std::vector<double> expected_degrees(const std::vector<double>& own,
+                                     const std::vector<double>& other,
                                      const std::vector<double>& other_count) {
   std::vector<double> expected(own.size(), 0.0);
   for (std::size_t a = 0; a < own.size(); ++a)
@@ -212,9 +213,12 @@ std::string sampler_description(const NullOptions& options, bool counts, long tr
 
 std::string to_string(NullModel model) {
   switch (model) {
-    case NullModel::fixed_margins: return "fixed-margins";
-    case NullModel::bicm: return "bicm";
-    case NullModel::curveball: return "curveball";
+    case NullModel::fixed_margins:
+      return "fixed-margins";
+    case NullModel::bicm:
+      return "bicm";
+    case NullModel::curveball:
+      return "curveball";
   }
   return "unknown";
 }
@@ -227,9 +231,12 @@ NullModel null_model_from_string(const std::string& text) {
 
 std::string to_string(BicmStatus status) {
   switch (status) {
-    case BicmStatus::converged: return "converged";
-    case BicmStatus::not_converged: return "not_converged";
-    case BicmStatus::no_links: return "no_links";
+    case BicmStatus::converged:
+      return "converged";
+    case BicmStatus::not_converged:
+      return "not_converged";
+    case BicmStatus::no_links:
+      return "no_links";
   }
   return "unknown";
 }
@@ -242,9 +249,12 @@ BicmStatus bicm_status_from_string(const std::string& text) {
 
 std::string to_string(NullComparisonStatus status) {
   switch (status) {
-    case NullComparisonStatus::compared: return "compared";
-    case NullComparisonStatus::zero_spread: return "zero_spread";
-    case NullComparisonStatus::fit_not_converged: return "fit_not_converged";
+    case NullComparisonStatus::compared:
+      return "compared";
+    case NullComparisonStatus::zero_spread:
+      return "zero_spread";
+    case NullComparisonStatus::fit_not_converged:
+      return "fit_not_converged";
   }
   return "unknown";
 }
@@ -266,7 +276,8 @@ bool holds_counts(const Matrix& matrix) {
 long sample_hypergeometric(long population, long successes, long draws, std::mt19937_64& rng) {
   assert(population >= 0 && successes >= 0 && draws >= 0);
   assert(successes <= population && draws <= population);
-  return hypergeometric_from_mode(population, successes, draws, log_factorials(population + 1), rng);
+  return hypergeometric_from_mode(population, successes, draws, log_factorials(population + 1),
+                                  rng);
 }
 
 Matrix sample_table_with_margins(const std::vector<long>& row_totals,
@@ -343,7 +354,8 @@ BicmFit fit_bicm(const BinaryMatrix& links, const BicmOptions& options) {
   double total = 0;
   for (double d : rows.degree) total += d;
   std::vector<double> x(rows.degree.size()), y(columns.degree.size());
-  for (std::size_t a = 0; a < x.size(); ++a) x[a] = rows.degree[a] / std::sqrt(std::max(total, 1.0));
+  for (std::size_t a = 0; a < x.size(); ++a)
+    x[a] = rows.degree[a] / std::sqrt(std::max(total, 1.0));
   for (std::size_t b = 0; b < y.size(); ++b)
     y[b] = columns.degree[b] / std::sqrt(std::max(total, 1.0));
 
@@ -364,12 +376,11 @@ BicmFit fit_bicm(const BinaryMatrix& links, const BicmOptions& options) {
   fit.row_values = Vector::Zero(n);
   fit.column_values = Vector::Zero(m);
   for (Index i = 0; i < n; ++i)
-    fit.row_values(i) = forced.row_free[i] ? x[rows.class_of[i]]
-                                           : (forced.row_fixed_p[i] > 0 ? infinity : 0.0);
+    fit.row_values(i) =
+        forced.row_free[i] ? x[rows.class_of[i]] : (forced.row_fixed_p[i] > 0 ? infinity : 0.0);
   for (Index j = 0; j < m; ++j)
-    fit.column_values(j) = forced.column_free[j]
-                               ? y[columns.class_of[j]]
-                               : (forced.column_fixed_p[j] > 0 ? infinity : 0.0);
+    fit.column_values(j) = forced.column_free[j] ? y[columns.class_of[j]]
+                                                 : (forced.column_fixed_p[j] > 0 ? infinity : 0.0);
   fit.probabilities = Matrix::Zero(n, m);
   for (Index i = 0; i < n; ++i)
     for (Index j = 0; j < m; ++j) {
@@ -400,8 +411,9 @@ BicmFit fit_bicm(const BinaryMatrix& links, const BicmOptions& options) {
     message << "expected degrees match to " << fit.max_degree_error;
   } else {
     fit.status = BicmStatus::not_converged;
-    message << "max degree error " << fit.max_degree_error << " after " << sweeps
-            << " sweeps (the degrees may admit no interior solution, e.g. a perfectly nested matrix)";
+    message
+        << "max degree error " << fit.max_degree_error << " after " << sweeps
+        << " sweeps (the degrees may admit no interior solution, e.g. a perfectly nested matrix)";
   }
   fit.message = message.str();
   return fit;
@@ -495,7 +507,8 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
       row_totals_ = observed.rowwise().sum();
       column_totals_ = observed.colwise().sum().transpose();
       if (counts_) {
-        for (Index i = 0; i < observed.rows(); ++i) row_counts_.push_back(std::lround(row_totals_(i)));
+        for (Index i = 0; i < observed.rows(); ++i)
+          row_counts_.push_back(std::lround(row_totals_(i)));
         for (Index j = 0; j < observed.cols(); ++j)
           column_counts_.push_back(std::lround(column_totals_(j)));
       }
@@ -526,10 +539,12 @@ Matrix NullSampler::next() {
       if (counts_) return sample_table_with_margins(row_counts_, column_counts_, rng_);
       const double total = reference_.sum();
       if (!(total > 0)) return reference_;
-      Matrix table = sample_multinomial_table(row_totals_, column_totals_, options_.share_units, rng_);
+      Matrix table =
+          sample_multinomial_table(row_totals_, column_totals_, options_.share_units, rng_);
       return table * (total / static_cast<double>(options_.share_units));
     }
-    case NullModel::bicm: return to_matrix(sample_links(bicm_fit_.probabilities, rng_));
+    case NullModel::bicm:
+      return to_matrix(sample_links(bicm_fit_.probabilities, rng_));
     case NullModel::curveball:
       chain_->trade(trades_between_);
       return to_matrix(chain_->matrix());

@@ -116,7 +116,8 @@ SecondEigen second_eigenvectors(const Matrix& m) {
   const Vector& values = solver.eigenvalues();  // increasing
   SecondEigen result;
   result.second = values(size - 2);
-  const double other_side = rows_side ? static_cast<double>(m.cols()) : static_cast<double>(m.rows());
+  const double other_side =
+      rows_side ? static_cast<double>(m.cols()) : static_cast<double>(m.rows());
   double third = size >= 3 ? values(size - 3) : (other_side > size ? 0.0 : -1.0);
   result.gap = values(size - 1) - values(size - 2);
   if (third >= 0) result.gap = std::min(result.gap, values(size - 2) - third);
@@ -158,10 +159,14 @@ void FitnessComplexityOptions::validate() const {
 
 std::string to_string(FitnessComplexityStatus status) {
   switch (status) {
-    case FitnessComplexityStatus::converged: return "converged";
-    case FitnessComplexityStatus::scores_decay: return "scores_decay";
-    case FitnessComplexityStatus::not_converged: return "not_converged";
-    case FitnessComplexityStatus::no_links: return "no_links";
+    case FitnessComplexityStatus::converged:
+      return "converged";
+    case FitnessComplexityStatus::scores_decay:
+      return "scores_decay";
+    case FitnessComplexityStatus::not_converged:
+      return "not_converged";
+    case FitnessComplexityStatus::no_links:
+      return "no_links";
   }
   return "unknown";
 }
@@ -245,8 +250,8 @@ FitnessComplexityResult fitness_complexity(const BinaryMatrix& links,
     message << "scores settled to a relative change of " << result.last_change;
   } else {
     result.status = FitnessComplexityStatus::not_converged;
-    message << "iteration limit " << options.max_iterations
-            << " reached with relative change " << result.last_change;
+    message << "iteration limit " << options.max_iterations << " reached with relative change "
+            << result.last_change;
   }
   if (n < links.rows() || m < links.cols())
     message << "; " << (links.rows() - n) << " rows and " << (links.cols() - m)
@@ -257,9 +262,12 @@ FitnessComplexityResult fitness_complexity(const BinaryMatrix& links,
 
 std::string to_string(ComplexityIndexStatus status) {
   switch (status) {
-    case ComplexityIndexStatus::computed: return "computed";
-    case ComplexityIndexStatus::degenerate: return "degenerate";
-    case ComplexityIndexStatus::no_links: return "no_links";
+    case ComplexityIndexStatus::computed:
+      return "computed";
+    case ComplexityIndexStatus::degenerate:
+      return "degenerate";
+    case ComplexityIndexStatus::no_links:
+      return "no_links";
   }
   return "unknown";
 }
@@ -273,8 +281,8 @@ ComplexityIndexStatus complexity_index_status_from_string(const std::string& tex
 
 std::string ComplexityIndexResult::brief() const {
   std::ostringstream out;
-  out << "ECI: " << to_string(status) << " (second eigenvalue " << second_eigenvalue
-      << ", gap " << eigen_gap << ")";
+  out << "ECI: " << to_string(status) << " (second eigenvalue " << second_eigenvalue << ", gap "
+      << eigen_gap << ")";
   return out.str();
 }
 
@@ -321,7 +329,8 @@ ComplexityIndexResult economic_complexity_index(const BinaryMatrix& links) {
   } else {
     message << "second eigenvalue " << eigen.second << ", gap " << eigen.gap;
   }
-  if (std::abs(agreement) < 1e-12) message << "; uncorrelated with diversity, so the sign is arbitrary";
+  if (std::abs(agreement) < 1e-12)
+    message << "; uncorrelated with diversity, so the sign is arbitrary";
   if (n < links.rows() || m < links.cols())
     message << "; " << (links.rows() - n) << " rows and " << (links.cols() - m)
             << " columns without links score 0";

@@ -20,8 +20,8 @@ using Catch::Matchers::WithinRel;
 
 namespace {
 
-constexpr double kExact = 1e-9;             // parts are ratios of small integers
-constexpr double kNumpyRelative = 1e-10;    // agreement with numpy's SVD
+constexpr double kExact = 1e-9;           // parts are ratios of small integers
+constexpr double kNumpyRelative = 1e-10;  // agreement with numpy's SVD
 
 BinaryMatrix binary(std::initializer_list<std::initializer_list<int>> rows) {
   BinaryMatrix m(static_cast<Eigen::Index>(rows.size()),
@@ -109,11 +109,8 @@ TEST_CASE("NODF of the worked example of Almeida-Neto et al. 2008 is 58.33") {
   // checked against a public write-up of that example; row 5 and the
   // published values (rows 53.3, columns 63.3, NODF 58.3) are from memory,
   // and the hand computation below reproduces them.
-  const BinaryMatrix m = binary({{1, 0, 1, 1, 1},
-                                 {1, 1, 1, 0, 0},
-                                 {0, 1, 1, 1, 0},
-                                 {1, 1, 0, 0, 0},
-                                 {1, 1, 0, 0, 0}});
+  const BinaryMatrix m =
+      binary({{1, 0, 1, 1, 1}, {1, 1, 1, 0, 0}, {0, 1, 1, 1, 0}, {1, 1, 0, 0, 0}, {1, 1, 0, 0, 0}});
   // Rows (degrees 4,3,3,2,2): r1r2 2/3, r1r3 2/3, r1r4 1/2, r1r5 1/2, r2r3 tie,
   // r2r4 2/2, r2r5 2/2, r3r4 1/2, r3r5 1/2, r4r5 tie -> 533.3/10 = 53.33.
   // Columns (degrees 4,4,3,2,1): c1c2 tie, c1c3 2/3, c1c4 1/2, c1c5 1/1,
@@ -280,7 +277,7 @@ TEST_CASE("NODF, WNODF and spectral radius timings on 1000 x 1000", "[.][timing]
   const auto [n, n_ms] = time_ms([&] { return nodf(m).total; });
   const auto [w, w_ms] = time_ms([&] { return wnodf(to_matrix(m)).total; });
   const auto [s, s_ms] = time_ms([&] { return spectral_radius(m); });
-  std::cout << "1000x1000 density 0.3: NODF " << n << " in " << n_ms << " ms; WNODF " << w
-            << " in " << w_ms << " ms; spectral radius " << s << " in " << s_ms << " ms\n";
+  std::cout << "1000x1000 density 0.3: NODF " << n << " in " << n_ms << " ms; WNODF " << w << " in "
+            << w_ms << " ms; spectral radius " << s << " in " << s_ms << " ms\n";
   CHECK(n > 0);
 }

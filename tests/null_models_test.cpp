@@ -155,8 +155,8 @@ TEST_CASE("multinomial tables place every unit and their mean approaches r c^T /
 }
 
 TEST_CASE("BiCM expected degrees equal the observed degrees") {
-  for (const std::string name : {"structure_random_30x40.csv", "structure_nested_25x20.csv",
-                                 "structure_tall_40x6.csv"}) {
+  for (const std::string name :
+       {"structure_random_30x40.csv", "structure_nested_25x20.csv", "structure_tall_40x6.csv"}) {
     INFO(name);
     const BinaryMatrix links = read_links(name);
     const BicmFit fit = fit_bicm(links);
@@ -219,8 +219,10 @@ TEST_CASE("BiCM sample degrees average to the fitted expectation") {
   std::mt19937_64 rng(37);
   const int samples = 3000;
   Vector degree_sum = Vector::Zero(links.rows());
-  for (int s = 0; s < samples; ++s) degree_sum += row_degrees(sample_links(fit.probabilities, rng)).cast<double>();
-  const Vector variance = (fit.probabilities.array() * (1 - fit.probabilities.array())).rowwise().sum();
+  for (int s = 0; s < samples; ++s)
+    degree_sum += row_degrees(sample_links(fit.probabilities, rng)).cast<double>();
+  const Vector variance =
+      (fit.probabilities.array() * (1 - fit.probabilities.array())).rowwise().sum();
   for (Eigen::Index i = 0; i < links.rows(); ++i) {
     INFO("row " << i);
     CHECK(std::abs(degree_sum(i) / samples - row_degrees(links)(i)) <
@@ -301,11 +303,9 @@ TEST_CASE("null comparison p-values and z-score follow a known null distribution
 }
 
 TEST_CASE("null ensembles are reproducible from their seed") {
-  const Matrix observed = read_matrix_csv(std::string(ALLOCSIM_TEST_DATA) +
-                                          "/structure_nested_25x20.csv").values;
-  const MetricFunction metric = [](const Matrix& m) {
-    return nodf(m.cast<std::uint8_t>()).total;
-  };
+  const Matrix observed =
+      read_matrix_csv(std::string(ALLOCSIM_TEST_DATA) + "/structure_nested_25x20.csv").values;
+  const MetricFunction metric = [](const Matrix& m) { return nodf(m.cast<std::uint8_t>()).total; };
   for (NullModel model : {NullModel::fixed_margins, NullModel::bicm, NullModel::curveball}) {
     INFO(to_string(model));
     NullOptions options;

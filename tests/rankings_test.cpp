@@ -131,8 +131,7 @@ TEST_CASE("Fitness-Complexity on [[1,1],[1,0]] decays as 1/(t+1)") {
 TEST_CASE("Fitness-Complexity converges where every score has a positive fixed point") {
   // A full matrix: every F~ and Q~ is equal, so the first iterate is the
   // fixed point F = Q = 1.
-  const FitnessComplexityResult full =
-      fitness_complexity(BinaryMatrix::Ones(3, 5));
+  const FitnessComplexityResult full = fitness_complexity(BinaryMatrix::Ones(3, 5));
   CHECK(full.status == FitnessComplexityStatus::converged);
   CHECK(full.fitness.isApprox(Vector::Ones(3)));
   CHECK(full.complexity.isApprox(Vector::Ones(5)));

@@ -85,9 +85,9 @@ BicmStatus bicm_status_from_string(const std::string& text);
 struct BicmFit {
   BicmStatus status = BicmStatus::not_converged;
   std::string message;
-  Vector row_values;      // x, n (0 for rows without links, +inf for full rows)
-  Vector column_values;   // y, m
-  Matrix probabilities;   // p_ij, n x m
+  Vector row_values;            // x, n (0 for rows without links, +inf for full rows)
+  Vector column_values;         // y, m
+  Matrix probabilities;         // p_ij, n x m
   double max_degree_error = 0;  // max over rows and columns of |expected - observed degree|
   long iterations = 0;
 
@@ -124,9 +124,9 @@ struct NullOptions {
   NullModel model = NullModel::curveball;  // which null model
   long samples = 1000;                     // ensemble size; >= 2
   std::uint64_t seed = 1;                  // seed of every random draw
-  long curveball_trades = 0;   // trades between curveball samples; 0 = max(100, 5 * rows); >= 0
-  long share_units = 10000;    // units of the multinomial table for a matrix of shares; >= 1
-  BicmOptions bicm;            // fit of the BiCM
+  long curveball_trades = 0;  // trades between curveball samples; 0 = max(100, 5 * rows); >= 0
+  long share_units = 10000;   // units of the multinomial table for a matrix of shares; >= 1
+  BicmOptions bicm;           // fit of the BiCM
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -164,8 +164,8 @@ class NullSampler {
 using MetricFunction = std::function<double(const Matrix&)>;
 
 enum class NullComparisonStatus {
-  compared,      // z-score and p-values computed
-  zero_spread,   // every null value is equal: z-score undefined (NaN), p-values still valid
+  compared,          // z-score and p-values computed
+  zero_spread,       // every null value is equal: z-score undefined (NaN), p-values still valid
   fit_not_converged  // bicm fit did not reach its tolerance; values use the fit reached
 };
 // Words: "compared", "zero_spread", "fit_not_converged".
@@ -179,12 +179,12 @@ struct NullComparison {
   std::string model_description;
   long samples = 0;
   std::uint64_t seed = 0;
-  double observed = 0;   // metric of NullSampler::reference()
+  double observed = 0;  // metric of NullSampler::reference()
   double null_mean = 0;
-  double null_sd = 0;    // sample standard deviation (divisor N - 1)
-  double z_score = 0;    // (observed - null_mean) / null_sd
-  double p_upper = 0;    // (1 + #{null >= observed}) / (1 + N)
-  double p_two_sided = 0;  // (1 + #{|null - mean| >= |observed - mean|}) / (1 + N)
+  double null_sd = 0;               // sample standard deviation (divisor N - 1)
+  double z_score = 0;               // (observed - null_mean) / null_sd
+  double p_upper = 0;               // (1 + #{null >= observed}) / (1 + N)
+  double p_two_sided = 0;           // (1 + #{|null - mean| >= |observed - mean|}) / (1 + N)
   std::vector<double> null_values;  // the N metric values, in sampling order
 
   std::string brief() const;

@@ -44,9 +44,13 @@ Ordering row_degree_order(const BinaryMatrix& links);
 Ordering column_degree_order(const BinaryMatrix& links);
 
 struct FitnessComplexityOptions {
-  double tolerance = 1e-10;       // stop when no score above zero_threshold changes by more than this, relative, in one iteration; in (0, 1)
-  long max_iterations = 2000;     // iterations at most; >= 1
-  double zero_threshold = 1e-12;  // a normalised score (mean 1) below this has decayed to zero; in (0, 1)
+  // Stop when no score above zero_threshold changes by more than this,
+  // relative, in one iteration; in (0, 1).
+  double tolerance = 1e-10;
+  // Iterations at most; >= 1.
+  long max_iterations = 2000;
+  // A normalised score (mean 1) below this has decayed to zero; in (0, 1).
+  double zero_threshold = 1e-12;
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -66,12 +70,13 @@ FitnessComplexityStatus fitness_complexity_status_from_string(const std::string&
 struct FitnessComplexityResult {
   FitnessComplexityStatus status = FitnessComplexityStatus::not_converged;
   std::string message;
-  Vector fitness;     // n; mean 1 over rows with links, 0 for rows without
-  Vector complexity;  // m; mean 1 over columns with links, 0 for columns without
+  Vector fitness;         // n; mean 1 over rows with links, 0 for rows without
+  Vector complexity;      // m; mean 1 over columns with links, 0 for columns without
   Ordering row_order;     // by decreasing fitness
   Ordering column_order;  // by decreasing complexity
   long iterations = 0;
-  double last_change = 0;  // largest relative change of a score above zero_threshold, last iteration
+  double last_change =
+      0;  // largest relative change of a score above zero_threshold, last iteration
   std::vector<Eigen::Index> decaying_rows;     // rows whose fitness decays towards zero
   std::vector<Eigen::Index> decaying_columns;  // columns whose complexity decays towards zero
 
@@ -95,10 +100,10 @@ ComplexityIndexStatus complexity_index_status_from_string(const std::string& tex
 struct ComplexityIndexResult {
   ComplexityIndexStatus status = ComplexityIndexStatus::no_links;
   std::string message;
-  Vector row_index;     // ECI, n; 0 for rows without links
-  Vector column_index;  // PCI, m; 0 for columns without links
-  Ordering row_order;     // by decreasing ECI
-  Ordering column_order;  // by decreasing PCI
+  Vector row_index;              // ECI, n; 0 for rows without links
+  Vector column_index;           // PCI, m; 0 for columns without links
+  Ordering row_order;            // by decreasing ECI
+  Ordering column_order;         // by decreasing PCI
   double second_eigenvalue = 0;  // of W (the largest is 1)
   double eigen_gap = 0;          // min(1 - second, second - third) eigenvalue
 
