@@ -33,7 +33,8 @@ class SinkhornState {
       : options_(options),
         mass_(problem.total_mass()),
         r_(problem.budgets / mass_),
-        c_(problem.capacities / mass_) {
+        c_(problem.capacities / mass_),
+        threads_(std::max(1, std::min<int>(options.threads, static_cast<int>(problem.agents())))) {
     shifted_gains_ = problem.gains;
     if (problem.access) {
       access_ = problem.access->cast<double>();
@@ -65,7 +66,7 @@ class SinkhornState {
     while (sweeps_left > 0) {
       --sweeps_left;
       ++sweeps_;
-      Kv_.noalias() = K_ * v_;
+      kernel_times_v();
       if (rows_underflow()) {
         exact_row_update();
         continue;
@@ -75,7 +76,7 @@ class SinkhornState {
         if (violation_ <= tolerance) return true;
       }
       u_ = r_.array() / Kv_.array();
-      KTu_.noalias() = K_.transpose() * u_;
+      kernel_transpose_times_u();
       if (columns_underflow()) {
         exact_column_update();
         continue;
@@ -123,15 +124,49 @@ class SinkhornState {
     return -sum;
   }
 
+  // The row blocks each thread owns: contiguous, so each streams its part of K.
+  Eigen::Index block_begin(int block) const {
+    return K_.rows() * block / threads_;
+  }
+
+  void kernel_times_v() {
+    Kv_.resize(K_.rows());
+#pragma omp parallel for num_threads(threads_) schedule(static, 1) if (threads_ > 1)
+    for (int b = 0; b < threads_; ++b) {
+      const Eigen::Index begin = block_begin(b), rows = block_begin(b + 1) - begin;
+      Kv_.segment(begin, rows).noalias() = K_.middleRows(begin, rows) * v_;
+    }
+  }
+
+  // K^T u: each thread sums its rows into its own partial column vector.
+  void kernel_transpose_times_u() {
+    if (threads_ == 1) {
+      KTu_.noalias() = K_.transpose() * u_;
+      return;
+    }
+    partial_.resize(K_.cols(), threads_);
+#pragma omp parallel for num_threads(threads_) schedule(static, 1)
+    for (int b = 0; b < threads_; ++b) {
+      const Eigen::Index begin = block_begin(b), rows = block_begin(b + 1) - begin;
+      partial_.col(b).noalias() = K_.middleRows(begin, rows).transpose() * u_.segment(begin, rows);
+    }
+    KTu_ = partial_.rowwise().sum();
+  }
+
   void rebuild_kernel() {
-    // Row by row: Eigen vectorises exp on a contiguous row, not on a broadcast expression.
     K_.resize(shifted_gains_.rows(), shifted_gains_.cols());
     const double inverse = 1.0 / eps_;
-    for (Eigen::Index i = 0; i < K_.rows(); ++i) {
-      row_exponent_ = (shifted_gains_.row(i).array() + g_.transpose().array() + f_[i]) * inverse;
-      K_.row(i) = row_exponent_.max(kSmallestExponent).exp();
+#pragma omp parallel num_threads(threads_) if (threads_ > 1)
+    {
+      // Row by row: Eigen vectorises exp on a contiguous row, not on a broadcast expression.
+      Eigen::ArrayXd exponent(K_.cols());
+#pragma omp for schedule(static)
+      for (Eigen::Index i = 0; i < K_.rows(); ++i) {
+        exponent = (shifted_gains_.row(i).array() + g_.transpose().array() + f_[i]) * inverse;
+        K_.row(i) = exponent.max(kSmallestExponent).exp();
+        if (access_.size()) K_.row(i).array() *= access_.row(i).array();
+      }
     }
-    if (access_.size()) K_.array() *= access_.array();
     u_ = Vector::Ones(r_.size());
     v_ = Vector::Ones(c_.size());
   }
@@ -189,7 +224,8 @@ class SinkhornState {
   double shift_ = 0;
   double eps_ = 1;
   Vector f_, g_, u_, v_, Kv_, KTu_;
-  Eigen::ArrayXd row_exponent_;  // scratch row for rebuild_kernel
+  Eigen::MatrixXd partial_;  // per-thread column sums of K^T u
+  int threads_ = 1;
   double violation_ = std::numeric_limits<double>::infinity();
   long sweeps_ = 0;
   long log_updates_ = 0;
@@ -215,6 +251,7 @@ void EntropicOptions::validate() const {
   if (!(epsilon_shrink > 0 && epsilon_shrink < 1))
     throw InputError("epsilon_shrink", "must be in (0, 1)");
   if (!(absorb_threshold > 1)) throw InputError("absorb_threshold", "must be greater than 1");
+  if (threads < 1) throw InputError("threads", "must be at least 1");
 }
 
 std::string to_string(EntropicStatus status) {

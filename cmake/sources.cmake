@@ -18,7 +18,11 @@ allocsim_layer(analysis
     analysis/nestedness.cpp
     analysis/rankings.cpp
     analysis/null_models.cpp
-  LINKS allocsim::core allocsim_lemon)
+    analysis/compare.cpp
+    analysis/additive_residual.cpp
+    analysis/observed_allocation.cpp
+    analysis/temperature.cpp
+  LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
   SOURCES
@@ -39,7 +43,20 @@ allocsim_layer(experiments
     experiments/keys.cpp
     experiments/results_file.cpp
     experiments/simulation.cpp
+    experiments/sweep.cpp
   LINKS allocsim::sim allocsim::analysis Boost::program_options)
+
+allocsim_layer(plots
+  SOURCES
+    plots/figure_script.cpp
+    plots/gnuplot_text.cpp
+    plots/heatmap.cpp
+    plots/ordering.cpp
+    plots/scores.cpp
+    plots/series.cpp
+    plots/trajectories.cpp
+  LINKS allocsim::core allocsim_gnuplot)
+include(plots/style.cmake)
 
 add_executable(allocsim
   experiments/cli/commands.cpp
@@ -50,4 +67,4 @@ add_executable(allocsim
   experiments/cli/solve_command.cpp)
 target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
 target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/experiments/cli)
-target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis Boost::program_options)
+target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis allocsim::plots Boost::program_options)

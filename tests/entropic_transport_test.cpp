@@ -182,3 +182,18 @@ TEST_CASE("options out of range name the field") {
   options.tolerance = 0;
   CHECK_THROWS_WITH(options.validate(), Catch::Contains("tolerance"));
 }
+
+TEST_CASE("two threads give the same coupling as one") {
+  std::mt19937_64 rng(kSeed + 7);
+  const TransportProblem p = random_problem(101, 67, rng);
+  EntropicOptions options;
+  options.epsilon = 0.01;
+  options.tolerance = kTolerance;
+  const EntropicResult one = solve_entropic(p, options);
+  options.threads = 2;
+  const EntropicResult two = solve_entropic(p, options);
+  REQUIRE(one.converged());
+  REQUIRE(two.converged());
+  CHECK(two.iterations == one.iterations);
+  CHECK((two.coupling - one.coupling).cwiseAbs().maxCoeff() < 1e-14);
+}

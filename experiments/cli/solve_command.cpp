@@ -1,6 +1,8 @@
 // allocsim solve: exact or entropic transport from CSV files.
 #include <iostream>
+#include <algorithm>
 #include <limits>
+#include <thread>
 #include <optional>
 
 #include "allocsim/analysis/entropic_transport.hpp"
@@ -112,6 +114,7 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
   }
   options.tolerance = vm["tolerance"].as<double>();
   options.max_iterations = vm["max-iterations"].as<long>();
+  options.threads = vm["threads"].as<int>();
   try {
     options.validate();
   } catch (const InputError& e) {
@@ -134,6 +137,8 @@ int solve_command(const Arguments& args) {
       ("epsilon-of-range", po::value<double>(), "transport temperature as a share of the gain range")
       ("tolerance", po::value<double>()->default_value(1e-9, "1e-9"), "entropic: relative L1 marginal violation")
       ("max-iterations", po::value<long>()->default_value(100000), "entropic: Sinkhorn iteration limit")
+      ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
+       "entropic: threads sharing each iteration")
       ("rescale", "scale the capacities so their total equals the budgets' total")
       ("out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")
       ("json", "print one JSON object on stdout instead of the summary line");

@@ -35,6 +35,8 @@ struct EntropicOptions {
   double epsilon_shrink = 0.5;     // factor between epsilon-scaling stages; in (0, 1)
   bool epsilon_scaling = true;     // false: start directly at epsilon
   double absorb_threshold = 1e30;  // absorb u, v into f, g when any leaves [1/t, t]; > 1
+  int threads = 1;                 // threads sharing each iteration (rows split in blocks); >= 1.
+                                   // Keep 1 inside sweeps, which run solves in parallel already.
 
   // Throws InputError naming the wrong field.
   void validate() const;
