@@ -1,0 +1,197 @@
+// Figures of allocsim, drawn with gnuplot through gnuplot-iostream.
+//
+// Every figure function takes plain data (matrices, points, labels), never a
+// results file, so the command line, the demo and the tests call them alike.
+// Each writes one image "<stem>.<png|svg|pdf>" (or, with
+// FigureOptions::script_only, the gnuplot script "<stem>.gp" that would draw
+// it) and returns the path it wrote.
+//
+// Guarantees:
+// * Text given in the data structs (titles, series and axis labels, agent and
+//   partner names) is plain text: it is escaped (escape_gnuplot_text) and
+//   drawn literally, never run as a gnuplot command nor read as markup.
+// * Files appear complete or not at all: gnuplot draws to a temporary name
+//   beside the target, renamed onto it only after gnuplot exits with status 0
+//   and the image is non-empty.
+// * The script is a pure function of the data and options (numbers are
+//   written with 18 significant digits, no time, no process id), so two
+//   generations for the same input are byte-identical.
+// * Data go inline in the script (gnuplot-iostream send1d); the styling of
+//   plots/style.gp is embedded at build time, so the script stands alone.
+//
+// Failures: InputError when the output cannot be written, when gnuplot
+// cannot be started or reports an error (its messages go to stderr), or when
+// the data cannot make the figure (no panel, shapes that disagree).
+#pragma once
+
+#include <limits>
+#include <string>
+#include <vector>
+
+#include "allocsim/core/matrix.hpp"
+
+namespace allocsim::plots {
+
+enum class ImageFormat { png, svg, pdf };
+
+std::string to_string(ImageFormat format);           // "png", "svg", "pdf"
+ImageFormat image_format_from_string(const std::string& text);  // throws InputError("--format", ...)
+std::string file_extension(ImageFormat format);      // without the dot
+
+struct FigureOptions {
+  ImageFormat format = ImageFormat::png;  // png: pngcairo; svg: svg; pdf: pdfcairo
+  int width_pixels = 0;       // 0: the figure's own default (1000, or wider for side-by-side panels); PDF at 100 px per inch
+  int height_pixels = 0;      // 0: the figure's own default (700, or 600 for heatmaps)
+  int font_size_points = 13;  // base font; titles are 2 points larger; in [6, 40]
+  bool script_only = false;   // write "<stem>.gp" (drawing to "<stem>.<format>") instead of running gnuplot
+  std::string gnuplot_program;  // empty: the gnuplot found at build time, else "gnuplot" on PATH
+
+  // Throws InputError naming the wrong field.
+  void validate() const;
+};
+
+// Escapes plain text for a single-quoted gnuplot string in enhanced-text
+// mode, without the enclosing quotes: ' becomes '', a backslash and each of
+// ^ _ @ & ~ { } get a backslash in front (enhanced-text escapes), and
+// newlines, tabs and other control characters become spaces (a newline would
+// end the command). Single quotes also stop gnuplot's backquote (shell)
+// substitution, so nothing in `text` can run a command. Text that starts
+// with ' gets a zero-width "&{}" in front (gnuplot would read a leading ''
+// as an empty string followed by stray text).
+std::string escape_gnuplot_text(const std::string& text);
+
+// A complete gnuplot string literal: "'" + escape_gnuplot_text(text) + "'".
+std::string quote_gnuplot_text(const std::string& text);
+
+// A display order of rows and columns: position k shows rows[k] (columns[k]).
+struct Ordering {
+  std::vector<long> rows, columns;
+};
+
+// Degree ordering of a matrix: rows (columns) by decreasing number of cells
+// > 0, ties by decreasing sum, then by index. On a nested matrix it puts the
+// filled cells in the upper-left triangle.
+Ordering degree_ordering(const Matrix& values);
+
+// ---------------------------------------------------------------------------
+// Allocation heatmaps, side by side on one shared colour scale.
+
+struct HeatmapPanel {
+  std::string title;  // e.g. "emergent allocation"
+  Matrix values;      // n x m, >= 0 (counts or shares; each panel is shown as shares of its own total)
+};
+
+struct AllocationHeatmaps {
+  std::string title;
+  std::vector<HeatmapPanel> panels;  // 1 to 4 panels of the same shape
+  Ordering ordering;                 // empty: degree_ordering(panels[0].values)
+  std::string ordering_name = "degree";  // named in the axis labels ("agents i, by degree")
+  std::vector<std::string> row_labels, column_labels;  // optional; drawn as tick labels up to 40 of them
+  bool log_colour_scale = true;  // log10 colours from smallest_share * max to max; smaller cells are white
+  double smallest_share = 1e-4;  // in (0, 1); of the largest share over all panels
+};
+
+// Draws the panels left to right with one colour bar (share of all units).
+std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std::string& stem,
+                                     const FigureOptions& options = {});
+
+// ---------------------------------------------------------------------------
+// Points with optional intervals, used by the figures against temperature.
+
+constexpr double kNoValue = std::numeric_limits<double>::quiet_NaN();
+
+struct Point {
+  double x = 0;
+  double y = 0;
+  double low = kNoValue;   // interval, NaN when none; high may be +inf (drawn to the top edge)
+  double high = kNoValue;
+};
+
+// Null-model ensemble at one x: its mean and 95% band (e.g. 2.5% and 97.5%
+// quantiles, or mean -/+ 1.96 sd).
+struct NullBandPoint {
+  double x = 0;
+  double mean = 0;
+  double low = 0;
+  double high = 0;
+};
+
+// A structure metric (NODF, WNODF) of the emergent allocations against the
+// choice temperature: one point per run, a line through the mean at each
+// temperature, the null mean (dashed) and its 95% band (shaded).
+struct MetricAgainstTemperature {
+  std::string title;
+  std::string metric_name;  // plain text, e.g. "NODF"; the y label
+  std::vector<Point> runs;  // x = choice temperature T (> 0), y = metric
+  std::vector<NullBandPoint> null_band;  // may be empty; several at one x are averaged
+  std::string null_name = "null model";  // e.g. "fixed-marginal null"
+};
+std::string draw_metric_against_temperature(const MetricAgainstTemperature& figure,
+                                            const std::string& stem,
+                                            const FigureOptions& options = {});
+
+// Estimated transport temperature against the true choice temperature, log
+// axes, with interval bars and the identity line. Points with an estimate
+// that is not a positive finite number (boundary estimates: 0 or infinity)
+// cannot sit on log axes; they are counted in a note on the figure.
+struct TemperatureRecovery {
+  std::string title;
+  std::vector<Point> runs;  // x = true T, y = estimated epsilon, low/high = its interval
+  std::string interval_name = "95% interval";
+};
+std::string draw_temperature_recovery(const TemperatureRecovery& figure, const std::string& stem,
+                                      const FigureOptions& options = {});
+
+// Distance from the emergent allocation to the entropic coupling (at the
+// estimated epsilon) and to the exact coupling, against the temperature.
+// The y axis is logarithmic when every distance is positive.
+struct DistanceAgainstTemperature {
+  std::string title;
+  std::string distance_name = "KL divergence";  // plain text; the y label
+  std::vector<Point> to_entropic;  // x = T
+  std::vector<Point> to_exact;     // x = T
+};
+std::string draw_distance_against_temperature(const DistanceAgainstTemperature& figure,
+                                              const std::string& stem,
+                                              const FigureOptions& options = {});
+
+// Price and marginal-error trajectories of one run over its rounds: the top
+// panel shows one price line per partner (absent when prices is empty), the
+// bottom panel the L1 marginal errors of each snapshot window (log y).
+struct Trajectories {
+  std::string title;
+  std::vector<double> rounds;                // round at the end of each snapshot window, k values
+  std::vector<std::vector<double>> prices;   // per partner: k prices; may be empty
+  std::vector<std::string> partner_labels;   // optional; named in the legend up to 8 partners
+  std::vector<double> row_error;             // k values of ||P 1 - r||_1 (shares); may be empty
+  std::vector<double> column_error;          // k values of ||P^T 1 - c||_1 (shares); may be empty
+};
+std::string draw_trajectories(const Trajectories& figure, const std::string& stem,
+                              const FigureOptions& options = {});
+
+// An estimator's scores on benchmark sets with known temperature, one
+// series per set (e.g. per gains family): left, the relative error
+// (epsilon_hat - epsilon) / epsilon with a bar from its first to third
+// quartile; right, the share of intervals that cover the truth, against the
+// nominal level.
+struct BenchmarkScore {
+  double true_epsilon = 0;       // > 0
+  double median_relative_error = 0;
+  double quartile_low = kNoValue;   // of the relative error; NaN when not known
+  double quartile_high = kNoValue;
+  double coverage = kNoValue;    // in [0, 1]; NaN when no intervals
+  long cases = 0;
+};
+struct BenchmarkSeries {
+  std::string label;  // plain text, e.g. "trait-distance gains"
+  std::vector<BenchmarkScore> scores;
+};
+struct EstimatorScores {
+  std::string title;
+  std::vector<BenchmarkSeries> sets;
+  double nominal_coverage = 0.95;
+};
+std::string draw_estimator_scores(const EstimatorScores& figure, const std::string& stem,
+                                  const FigureOptions& options = {});
+
+}  // namespace allocsim::plots
