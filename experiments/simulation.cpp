@@ -22,7 +22,6 @@ SummaryTable one_row_summary(const std::string& run, const ExperimentValues& val
       table.texts.push_back({key.name, {values.text(key.name)}});
     }
   }
-  table.numbers.push_back({"seconds", {result.seconds}});
   table.numbers.push_back({"units_after_burn_in", {result.total.sum()}});
   table.numbers.push_back({"unplaced_units", {static_cast<double>(result.unplaced_units)}});
   return table;
