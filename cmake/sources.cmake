@@ -22,6 +22,7 @@ allocsim_layer(analysis
     analysis/additive_residual.cpp
     analysis/observed_allocation.cpp
     analysis/temperature.cpp
+    analysis/marginal_newton.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
