@@ -10,7 +10,7 @@ packages=(
   libeigen3-dev libboost-program-options-dev libboost-iostreams-dev libboost-filesystem-dev
   libhdf5-dev catch2 libgnuplot-iostream-dev gnuplot-nox liblemon-dev
   libopenmpi-dev openmpi-bin
-  python3 python3-numpy python3-scipy python3-h5py
+  python3 python3-numpy python3-scipy python3-h5py python3-statsmodels
 )
 
 missing=()
