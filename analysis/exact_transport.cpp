@@ -357,10 +357,66 @@ double relative_marginal_error(const TransportProblem& p, const Matrix& pi) {
          p.budgets.sum();
 }
 
+// On a forest support the marginals fix every flow: peeling leaves one at a
+// time, a leaf's remaining mass is the flow on its only link. Recomputing the
+// flows this way from the real (unrounded) budgets and capacities makes the
+// marginals exact to floating-point rounding instead of to total/mass_units,
+// and whole-number masses give whole-number flows. Returns false (leaving
+// `coupling` as it was) if a flow would come out negative.
+bool refit_on_forest(const TransportProblem& p, Matrix& coupling) {
+  const Eigen::Index n = p.agents(), m = p.partners();
+  std::vector<std::pair<Eigen::Index, Eigen::Index>> links;
+  std::vector<std::vector<std::size_t>> links_at(static_cast<std::size_t>(n + m));
+  for (Eigen::Index i = 0; i < n; ++i) {
+    for (Eigen::Index j = 0; j < m; ++j) {
+      if (coupling(i, j) <= 0) continue;
+      links_at[static_cast<std::size_t>(i)].push_back(links.size());
+      links_at[static_cast<std::size_t>(n + j)].push_back(links.size());
+      links.emplace_back(i, j);
+    }
+  }
+  std::vector<double> remaining(static_cast<std::size_t>(n + m));
+  for (Eigen::Index i = 0; i < n; ++i) remaining[static_cast<std::size_t>(i)] = p.budgets[i];
+  for (Eigen::Index j = 0; j < m; ++j) remaining[static_cast<std::size_t>(n + j)] = p.capacities[j];
+  std::vector<std::size_t> degree(links_at.size());
+  std::vector<std::size_t> leaves;
+  for (std::size_t v = 0; v < links_at.size(); ++v) {
+    degree[v] = links_at[v].size();
+    if (degree[v] == 1) leaves.push_back(v);
+  }
+  std::vector<bool> done(links.size(), false);
+  Matrix refitted = Matrix::Zero(n, m);
+  const double tolerance = 1e-9 * p.total_mass();
+  while (!leaves.empty()) {
+    const std::size_t v = leaves.back();
+    leaves.pop_back();
+    if (degree[v] != 1) continue;
+    std::size_t e = 0;
+    for (const std::size_t candidate : links_at[v]) {
+      if (!done[candidate]) e = candidate;
+    }
+    const auto [i, j] = links[e];
+    const double flow = remaining[v];
+    if (flow < -tolerance) return false;
+    refitted(i, j) = std::max(flow, 0.0);
+    done[e] = true;
+    const std::size_t other = v < static_cast<std::size_t>(n) ? static_cast<std::size_t>(n + j)
+                                                             : static_cast<std::size_t>(i);
+    remaining[other] -= flow;
+    remaining[v] = 0;
+    degree[v] = 0;
+    if (--degree[other] == 1) leaves.push_back(other);
+  }
+  if (std::find(done.begin(), done.end(), false) != done.end()) return false;  // a cycle
+  coupling = std::move(refitted);
+  return true;
+}
+
 void fill_solution(const TransportProblem& p, const TransportNetwork& network, double unit_mass,
                    ExactResult& result) {
   result.status = ExactStatus::optimal;
   result.coupling = network.coupling(unit_mass);
+  refit_on_forest(p, result.coupling);
   network.potentials(result.agent_potential, result.partner_potential);
   result.total_gain = total_gain(p, result.coupling);
   result.support_size = static_cast<long>((result.coupling.array() > 0).count());

@@ -497,3 +497,26 @@ TEST_CASE("the brief names the status, the gain and the links") {
   const auto failed = solve_exact(p);
   CHECK(failed.brief().rfind("exact: infeasible: partner 2 may be used by no agent", 0) == 0);
 }
+
+TEST_CASE("whole-number budgets and capacities give a whole-number coupling with exact marginals") {
+  // Total unimodularity of the transportation polytope (common practice): a
+  // basic optimum of an integer-margin problem is integral.
+  std::mt19937_64 rng(97);
+  std::uniform_int_distribution<int> count(1, 40);
+  std::uniform_real_distribution<double> gain(0.0, 1.0);
+  for (int trial = 0; trial < 10; ++trial) {
+    TransportProblem p;
+    p.gains = Matrix::NullaryExpr(12, 9, [&] { return gain(rng); });
+    p.budgets = Vector::NullaryExpr(12, [&] { return static_cast<double>(count(rng)); });
+    p.capacities = Vector::NullaryExpr(9, [&] { return static_cast<double>(count(rng)); });
+    // Balance by topping up the smaller side's last entry.
+    const double gap = p.budgets.sum() - p.capacities.sum();
+    (gap > 0 ? p.capacities[8] : p.budgets[11]) += std::abs(gap);
+    const ExactResult result = solve_exact(p);
+    REQUIRE(result.optimal());
+    INFO("trial " << trial);
+    CHECK((result.coupling.array() - result.coupling.array().round()).abs().maxCoeff() == 0.0);
+    CHECK((result.coupling.rowwise().sum() - p.budgets).cwiseAbs().maxCoeff() == 0.0);
+    CHECK((result.coupling.colwise().sum().transpose() - p.capacities).cwiseAbs().maxCoeff() == 0.0);
+  }
+}
