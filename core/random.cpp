@@ -142,8 +142,35 @@ long RandomStream::binomial(long n, double p) {
   return binomial_from_mode(*this, n, p);
 }
 
+namespace {
+
+// n independent categorical draws by binary search on the prefix sums:
+// O(size + n log size), cheaper than conditional binomials when n <= size.
+void add_categorical_draws(RandomStream& rng, long n, const double* weights, long size,
+                           double* out) {
+  thread_local std::vector<double> prefix;
+  prefix.resize(static_cast<std::size_t>(size));
+  double running = 0;
+  for (long j = 0; j < size; ++j) {
+    running += weights[j] > 0 ? weights[j] : 0.0;
+    prefix[static_cast<std::size_t>(j)] = running;
+  }
+  for (long unit = 0; unit < n; ++unit) {
+    const double target = rng.uniform() * running;
+    const auto chosen = std::upper_bound(prefix.begin(), prefix.end(), target) - prefix.begin();
+    out[std::min<long>(chosen, size - 1)] += 1.0;
+  }
+}
+
+}  // namespace
+
 void add_multinomial(RandomStream& rng, long n, const double* weights, long size,
                      double weight_sum, double* out) {
+  if (n <= 0) return;
+  if (n <= size) {
+    add_categorical_draws(rng, n, weights, size, out);
+    return;
+  }
   double remaining_weight = weight_sum;
   long last = size - 1;
   while (last >= 0 && weights[last] <= 0) --last;

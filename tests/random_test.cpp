@@ -109,18 +109,25 @@ TEST_CASE("a multinomial places every unit and only on positive weights") {
   }
 }
 
-TEST_CASE("single-unit multinomial draws follow the weights (chi-square)", "[statistical]") {
-  // chi2.ppf(0.999, 5) = 20.515 from scipy.stats 1.10.
-  RandomStream rng(kSeed, 0, StreamId::dynamics, 5);
+TEST_CASE("multinomial draws follow the weights (chi-square)", "[statistical]") {
+  // Summed over D draws, multinomial(n) counts are multinomial(n D), so
+  // Pearson's statistic has 5 degrees of freedom; chi2.ppf(0.999, 5) = 20.515
+  // from scipy.stats 1.10. n = 1 and 4 use the categorical draws, n = 50 the
+  // conditional binomials.
   const double weights[] = {0.1, 0.2, 0.3, 0.15, 0.05, 0.2};
-  double counts[6] = {0, 0, 0, 0, 0, 0};
-  for (long d = 0; d < kDraws; ++d) add_multinomial(rng, 1, weights, 6, 1.0, counts);
-  double statistic = 0;
-  for (int j = 0; j < 6; ++j) {
-    const double expected = kDraws * weights[j];
-    statistic += (counts[j] - expected) * (counts[j] - expected) / expected;
+  for (const long n : {1L, 4L, 50L}) {
+    RandomStream rng(kSeed, 0, StreamId::dynamics, 5 + static_cast<std::uint64_t>(n));
+    double counts[6] = {0, 0, 0, 0, 0, 0};
+    const long draws = kDraws / n;
+    for (long d = 0; d < draws; ++d) add_multinomial(rng, n, weights, 6, 1.0, counts);
+    double statistic = 0;
+    for (int j = 0; j < 6; ++j) {
+      const double expected = static_cast<double>(draws * n) * weights[j];
+      statistic += (counts[j] - expected) * (counts[j] - expected) / expected;
+    }
+    INFO("n = " << n);
+    CHECK(statistic < 20.515005652432873);
   }
-  CHECK(statistic < 20.515005652432873);
 }
 
 TEST_CASE("log_factorial matches the sum of logs") {
