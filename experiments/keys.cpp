@@ -322,7 +322,34 @@ std::string ExperimentValues::to_ini() const {
   return out.str();
 }
 
-void read_experiment_file(const std::string& path, ExperimentValues& values) {
+void add_sweep_line(SweepSection& sweep, const std::string& key, const std::string& text,
+                    const std::string& where) {
+  const std::string value = trim(text);
+  const std::string place = key_place(where, "sweep." + key);
+  if (key == "combine") {
+    sweep.combine = sweep_combine_from_string(value, place);
+    return;
+  }
+  if (key == "replicates") {
+    char* end = nullptr;
+    const long replicates = std::strtol(value.c_str(), &end, 10);
+    if (value.empty() || *end != '\0' || replicates < 1) {
+      throw InputError(place, "'" + value + "' is not a whole number >= 1");
+    }
+    sweep.replicates = replicates;
+    return;
+  }
+  if (!find_experiment_key(key)) {
+    throw InputError(place, "an axis must be named by an experiment key (did you mean sweep." +
+                                nearest_experiment_key(key) + "?); or use combine, replicates");
+  }
+  SweepAxis axis{key, expand_sweep_values(value, place), where};
+  ExperimentValues probe;
+  for (const auto& v : axis.values) probe.set(key, v, where);
+  sweep.axes.push_back(std::move(axis));
+}
+
+void read_experiment_file(const std::string& path, ExperimentValues& values, SweepSection* sweep) {
   std::ifstream in(path);
   if (!in) throw InputError(path, "cannot be read (does the file exist?)");
   std::stringstream buffer;
@@ -353,6 +380,14 @@ void read_experiment_file(const std::string& path, ExperimentValues& values) {
                        "given twice (first at line " + std::to_string(at[0]) + ")");
     }
     const std::string value = option.value.empty() ? "" : option.value.front();
+    if (option.string_key.rfind("sweep.", 0) == 0) {
+      if (!sweep) {
+        throw InputError(key_place(where, option.string_key),
+                         "a [sweep] section runs many points: use 'allocsim run " + path + "'");
+      }
+      add_sweep_line(*sweep, option.string_key.substr(6), value, where);
+      continue;
+    }
     values.set(option.string_key, value, where);
   }
 }

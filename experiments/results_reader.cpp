@@ -121,6 +121,12 @@ Attributes ResultsReader::run_attributes(const std::string& run) const {
   return read_attributes(file_.openGroup("runs/" + run));
 }
 
+Attributes ResultsReader::group_attributes(const std::string& run,
+                                           const std::string& path) const {
+  if (!has(run, path)) return {};
+  return read_attributes(file_.openGroup("runs/" + run + "/" + path));
+}
+
 bool ResultsReader::has(const std::string& run, const std::string& path) const {
   const std::string full = "runs/" + run + "/" + path;
   // nameExists checks one link at a time: walk the path.

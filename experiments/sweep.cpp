@@ -143,4 +143,14 @@ std::vector<SweepPoint> sweep_points(const std::vector<SweepAxis>& axes, SweepCo
   return points;
 }
 
+std::string sweep_syntax_help() {
+  return "sweep axes (in the [sweep] section, one line per key to vary):\n"
+         "  dynamics.temperature = 0.05, 0.1, 0.2     a list (numbers or words)\n"
+         "  scenario.agents = 20..40                  whole numbers, both ends included\n"
+         "  dynamics.price_step = linear(0.2, 1, 5)   5 evenly spaced values\n"
+         "  dynamics.temperature = log(0.01, 1, 7)    7 log-spaced values\n"
+         "  combine = grid | zip                      every combination, or k-th with k-th\n"
+         "  replicates = 3                            runs per point, each with its own seed\n";
+}
+
 }  // namespace allocsim

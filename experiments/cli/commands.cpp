@@ -5,8 +5,11 @@ namespace allocsim::cli {
 const std::vector<Command>& all_commands() {
   static const std::vector<Command> commands = {
       {"solve", "exact or entropic transport from CSV files", solve_command},
+      {"run", "every run of an experiment file's sweep, in parallel and resumable", run_command},
       {"simulate", "one simulated run of an experiment, written to HDF5", simulate_command},
       {"inspect", "lists what a results file holds", inspect_command},
+      {"analyze", "temperature, distance to optimal couplings and structure of an allocation", analyze_command},
+      {"plot", "draws the figures of a results file", plot_command},
   };
   return commands;
 }

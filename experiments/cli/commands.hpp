@@ -17,8 +17,11 @@ struct Command {
 };
 
 int solve_command(const Arguments& args);
+int run_command(const Arguments& args);
 int simulate_command(const Arguments& args);
 int inspect_command(const Arguments& args);
+int analyze_command(const Arguments& args);
+int plot_command(const Arguments& args);
 
 // Every subcommand, in the order `allocsim --help` lists them.
 const std::vector<Command>& all_commands();

@@ -3,6 +3,7 @@
 #include <iostream>
 
 #include "allocsim/core/error.hpp"
+#include "allocsim/experiments/keys.hpp"
 
 namespace allocsim::cli {
 
@@ -23,6 +24,50 @@ bool parse_or_help(const Arguments& args, const po::options_description& options
                      std::string(e.what()) + " (see 'allocsim " + command + " --help')");
   }
   return true;
+}
+
+void add_experiment_key_options(po::options_description& options) {
+  for (const auto& key : experiment_keys()) {
+    options.add_options()(key.name.c_str(), po::value<std::string>(), key.description.c_str());
+  }
+}
+
+po::variables_map parse_with_experiment_keys(const Arguments& args,
+                                             const po::options_description& options,
+                                             const po::positional_options_description* positional,
+                                             const std::string& command) {
+  po::variables_map vm;
+  try {
+    po::command_line_parser parser(args);
+    parser.options(options).allow_unregistered();
+    if (positional) parser.positional(*positional);
+    const po::parsed_options parsed = parser.run();
+    for (const auto& option : parsed.options) {
+      if (!option.unregistered) continue;
+      const std::string given = option.original_tokens.empty() ? option.string_key
+                                                               : option.original_tokens.front();
+      if (given.rfind("-", 0) != 0) {
+        throw InputError("allocsim " + command, "unexpected argument '" + given + "'");
+      }
+      const std::string name = given.substr(given.find_first_not_of('-'));
+      throw InputError(given, "unknown option (did you mean --" +
+                                  nearest_experiment_key(name.substr(0, name.find('='))) + "?)");
+    }
+    po::store(parsed, vm);
+    po::notify(vm);
+  } catch (const po::error& e) {
+    throw InputError("allocsim " + command,
+                     std::string(e.what()) + " (see 'allocsim " + command + " --help')");
+  }
+  return vm;
+}
+
+std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm) {
+  std::vector<std::pair<std::string, std::string>> given;
+  for (const auto& key : experiment_keys()) {
+    if (vm.count(key.name)) given.emplace_back(key.name, vm[key.name].as<std::string>());
+  }
+  return given;
 }
 
 }  // namespace allocsim::cli

@@ -4,6 +4,8 @@
 #include <boost/program_options.hpp>
 #include <iosfwd>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "commands.hpp"
 
@@ -17,5 +19,19 @@ namespace po = boost::program_options;
 bool parse_or_help(const Arguments& args, const po::options_description& options,
                    const po::positional_options_description& positional, po::variables_map& vm,
                    const std::string& command, const std::string& usage);
+
+// Adds every experiment key as a --section.key option.
+void add_experiment_key_options(po::options_description& options);
+
+// Parses a command that takes experiment keys: an unknown option is an
+// InputError naming the nearest valid key; positional arguments go to
+// `positional` (nullptr: none allowed).
+po::variables_map parse_with_experiment_keys(const Arguments& args,
+                                             const po::options_description& options,
+                                             const po::positional_options_description* positional,
+                                             const std::string& command);
+
+// The (key, value) pairs of the experiment keys given on the command line.
+std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm);
 
 }  // namespace allocsim::cli

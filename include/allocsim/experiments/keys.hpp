@@ -13,6 +13,8 @@
 #include <string>
 #include <vector>
 
+#include "allocsim/experiments/sweep.hpp"
+
 namespace allocsim {
 
 enum class KeyKind {
@@ -79,11 +81,27 @@ class ExperimentValues {
   std::map<std::string, Entry> entries_;
 };
 
+// The [sweep] section of an experiment file (see sweep.hpp for its syntax).
+struct SweepSection {
+  std::vector<SweepAxis> axes;       // in file order
+  SweepCombine combine = SweepCombine::grid;
+  long replicates = 1;
+
+  bool empty() const { return axes.empty() && replicates == 1; }
+};
+
 // Reads an INI experiment file into `values` (Boost.Program_options parses
 // it; lines are located for messages). Throws InputError naming the file and
 // line for an unreadable file, a malformed line, an unknown key (with the
-// nearest valid one), a key given twice, or a bad value.
-void read_experiment_file(const std::string& path, ExperimentValues& values);
+// nearest valid one), a key given twice, or a bad value. The [sweep] section
+// goes into `sweep`; without it (nullptr) a [sweep] section is an error
+// that points to `allocsim run`. Every value of every axis is checked here.
+void read_experiment_file(const std::string& path, ExperimentValues& values,
+                          SweepSection* sweep = nullptr);
+
+// Adds one [sweep] line (key without the "sweep." prefix); checks it.
+void add_sweep_line(SweepSection& sweep, const std::string& key, const std::string& text,
+                    const std::string& where);
 
 // Help text listing every key with its default, valid values and meaning.
 std::string experiment_keys_help();

@@ -43,6 +43,8 @@ class ResultsFile {
   void commit();
 
   const std::string& temporary_path() const { return temporary_; }
+  // The open file, for writers that need more than create_run (e.g. copying runs in).
+  H5::H5File& file() { return file_; }
 
  private:
   std::string path_, temporary_;

@@ -41,6 +41,8 @@ class ResultsReader {
   // Throws InputError naming the file and the runs it holds when absent.
   void require_run(const std::string& run) const;
   Attributes run_attributes(const std::string& run) const;
+  // Attributes of a group inside the run, e.g. "analysis"; empty when absent.
+  Attributes group_attributes(const std::string& run, const std::string& path) const;
 
   // Paths are relative to /runs/<run>, e.g. "allocation/total".
   bool has(const std::string& run, const std::string& path) const;

@@ -50,4 +50,7 @@ struct SweepPoint {
 std::vector<SweepPoint> sweep_points(const std::vector<SweepAxis>& axes, SweepCombine combine,
                                      long replicates);
 
+// The [sweep] syntax in a few lines, for --list-keys and --help.
+std::string sweep_syntax_help();
+
 }  // namespace allocsim

@@ -1,0 +1,93 @@
+// Running an experiment file: every point of its sweep, on a pool of
+// threads (and, when built with MPI, over ranks), each finished run kept at
+// once (run_store.hpp), so an interrupted sweep resumes where it stopped.
+//
+// Runs are numbered in sweep order (sweep.hpp); run k is seeded by
+// (scenario.seed, k, stream) whatever thread or rank plays it, so a sweep's
+// results do not depend on how it was spread.
+#pragma once
+
+#include <atomic>
+#include <functional>
+#include <memory>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "allocsim/experiments/experiment.hpp"
+#include "allocsim/experiments/keys.hpp"
+#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/experiments/sweep.hpp"
+
+namespace allocsim {
+
+// The experiment, checked in full before any run starts.
+struct SweepPlan {
+  std::string experiment_text;     // the file as given (stored in the results)
+  ExperimentValues base;           // the values without the sweep
+  SweepSection sweep;
+  std::vector<SweepPoint> points;  // run k = points[k]
+  std::vector<std::string> swept_keys;
+  std::string output_file;
+
+  // The values of run k: the base with that point's axis values applied.
+  ExperimentValues run_values(long k) const;
+};
+
+// Reads and checks the experiment (every point's settings), with
+// command-line values (key, text) applied over the file's. Throws InputError
+// naming file, line and key.
+SweepPlan plan_sweep(const std::string& path,
+                     const std::vector<std::pair<std::string, std::string>>& command_line);
+
+// Hands out run numbers to workers; one per process (threads share it).
+class RunDistributor {
+ public:
+  virtual ~RunDistributor() = default;
+  // The next position in the to-do list, or -1 when none is left.
+  virtual long next() = 0;
+};
+
+// Positions 0, 1, 2, ... up to `count`, across the threads of one process.
+std::unique_ptr<RunDistributor> local_distributor(long count);
+
+struct SweepProgress {
+  long done = 0;       // runs finished in this invocation
+  long to_do = 0;      // runs this invocation set out to do
+  double seconds = 0;  // since the start
+};
+
+struct SweepRequest {
+  int threads = 1;                  // worker threads in this process; >= 1
+  bool restart = false;             // discard an unfinished sweep of another experiment
+  std::string tool_version;
+  std::function<void(const SweepProgress&)> progress;  // called after each run (serialised)
+  const std::atomic<bool>* stop = nullptr;             // set to stop taking new runs
+  // Spreads the to-do list; default: local_distributor. With MPI, every rank
+  // passes the same to-do list (computed by rank 0) and a shared distributor.
+  std::function<std::unique_ptr<RunDistributor>(long count)> make_distributor;
+  std::function<std::vector<long>(std::vector<long>)> share_to_do;  // identity without MPI
+  std::function<void()> barrier;                                      // no-op without MPI
+  bool merge_here = true;           // false on MPI ranks other than 0
+};
+
+struct SweepReport {
+  std::string output_file;
+  long total = 0;          // runs in the sweep
+  long already_done = 0;   // found finished from an earlier invocation
+  long ran = 0;            // finished now (by this process)
+  std::vector<std::string> failures;  // "run-000012: message"
+  bool interrupted = false;
+  bool complete = false;   // the results file was written
+  double seconds = 0;
+  SummaryTable summary;    // when complete
+
+  std::string brief() const;
+};
+
+SweepReport run_sweep(const SweepPlan& plan, const SweepRequest& request);
+
+// The summary table as CSV (one row per run), written atomically.
+void write_summary_csv(const std::string& path, const SummaryTable& table);
+
+}  // namespace allocsim
