@@ -6,6 +6,7 @@ allocsim_layer(core
     core/atomic_file.cpp
     core/csv.cpp
     core/json.cpp
+    core/memory_limit.cpp
     core/problem.cpp
     core/random.cpp
   LINKS Eigen3::Eigen)
@@ -43,8 +44,11 @@ allocsim_layer(experiments
     experiments/experiment.cpp
     experiments/keys.cpp
     experiments/results_file.cpp
+    experiments/results_reader.cpp
+    experiments/run_store.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
+    experiments/sweep_runner.cpp
   LINKS allocsim::sim allocsim::analysis Boost::program_options)
 
 allocsim_layer(plots
@@ -62,10 +66,18 @@ include(plots/style.cmake)
 add_executable(allocsim
   experiments/cli/commands.cpp
   experiments/cli/main.cpp
+  experiments/cli/mpi_sweep.cpp
+  experiments/cli/analyze_command.cpp
   experiments/cli/inspect_command.cpp
+  experiments/cli/plot_command.cpp
   experiments/cli/options.cpp
+  experiments/cli/run_command.cpp
   experiments/cli/simulate_command.cpp
   experiments/cli/solve_command.cpp)
 target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
 target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/experiments/cli)
 target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis allocsim::plots Boost::program_options)
+if(MPI_CXX_FOUND)
+  target_compile_definitions(allocsim PRIVATE ALLOCSIM_WITH_MPI)
+  target_link_libraries(allocsim PRIVATE MPI::MPI_CXX)
+endif()
