@@ -3,6 +3,7 @@
 #include <cmath>
 #include <sstream>
 
+#include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -32,7 +33,7 @@ void check_entries(const Matrix& p, const Matrix& gains, const std::optional<Acc
       if (!std::isfinite(v))
         throw InputError(s.allocation, cell(i, j) + ": entry is not a finite number");
       if (v < 0)
-        throw InputError(s.allocation, cell(i, j) + ": negative entry " + std::to_string(v) +
+        throw InputError(s.allocation, cell(i, j) + ": negative entry " + format_number(v) +
                                            "; an allocation holds units or shares >= 0");
       const bool allowed = !access || (*access)(i, j) != 0;
       if (allowed && !std::isfinite(gains(i, j)))

@@ -169,9 +169,14 @@ AnalyzeOptions read_options(const po::variables_map& vm) {
   } catch (const InputError&) {
     throw InputError("--confidence", "must be in (0, 1), e.g. 0.95");
   }
-  options.binarize.rule = binarize_rule_from_string(vm["binarize"].as<std::string>());
-  if (vm.count("threshold")) options.binarize.threshold = vm["threshold"].as<double>();
-  options.binarize.validate();
+  try {
+    options.binarize.rule = binarize_rule_from_string(vm["binarize"].as<std::string>());
+    if (vm.count("threshold")) options.binarize.threshold = vm["threshold"].as<double>();
+    options.binarize.validate();
+  } catch (const InputError& e) {
+    throw InputError(vm.count("threshold") && e.where() == "threshold" ? "--threshold" : "--binarize",
+                     std::string(e.what()).substr(e.where().size() + 2));
+  }
   return options;
 }
 
