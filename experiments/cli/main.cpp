@@ -32,7 +32,11 @@ int main(int argc, char** argv) {
     return kExitOk;
   }
   if (name == "--version") {
+#ifdef ALLOCSIM_WITH_MPI
+    std::cout << "allocsim " << ALLOCSIM_VERSION << " (with MPI)\n";
+#else
     std::cout << "allocsim " << ALLOCSIM_VERSION << "\n";
+#endif
     return kExitOk;
   }
   for (const auto& command : all_commands()) {
