@@ -136,7 +136,7 @@ TEST_CASE("sampled price rule approaches the entropic coupling as units grow", "
   // fluctuations, O(1/units). Measured on this scenario over seeds 1..20:
   // geometric-mean distance 7.5e-3, 1.44e-3, 4.0e-4 at 1e3, 1e4, 1e5 units
   // per round (about units^-0.63), and each tenfold rise cut a seed's
-  // distance by a factor between 2.8 and 6.8. Asking for a factor of 2 per
+  // distance by a factor between 2.8 and 6.3. Asking for a factor of 2 per
   // decade had no false alarm in those 40 comparisons (observed rate < 1/40).
   const TransportProblem problem =
       make_scenario(scenario(GainsKind::trait_distance, AccessKind::threshold, MassKind::zipf));

@@ -112,10 +112,10 @@ TEST_CASE("a multinomial places every unit and only on positive weights") {
 TEST_CASE("multinomial draws follow the weights (chi-square)", "[statistical]") {
   // Summed over D draws, multinomial(n) counts are multinomial(n D), so
   // Pearson's statistic has 5 degrees of freedom; chi2.ppf(0.999, 5) = 20.515
-  // from scipy.stats 1.10. n = 1 and 4 use the categorical draws, n = 50 the
+  // from scipy.stats 1.10. n = 1, 4 and 20 use sorted uniforms, n = 50 the
   // conditional binomials.
   const double weights[] = {0.1, 0.2, 0.3, 0.15, 0.05, 0.2};
-  for (const long n : {1L, 4L, 50L}) {
+  for (const long n : {1L, 4L, 20L, 50L}) {
     RandomStream rng(kSeed, 0, StreamId::dynamics, 5 + static_cast<std::uint64_t>(n));
     double counts[6] = {0, 0, 0, 0, 0, 0};
     const long draws = kDraws / n;

@@ -60,8 +60,8 @@ class RandomStream {
 
 // Draws a multinomial(n, weights / weight_sum) sample and ADDS the counts to
 // out[0..size). Weights are >= 0 and sum to weight_sum > 0 (up to rounding).
-// For n <= size: n categorical draws by binary search on the prefix sums,
-// O(size + n log size). Otherwise conditional binomials,
+// For n <= 4 size: n sorted uniforms (from exponential spacings) swept once
+// against the prefix sums, O(size + n). Otherwise conditional binomials,
 // x_j ~ Binomial(n - placed, w_j / remaining weight), which stop as soon as
 // all n units are placed; O(size + sum_j sd_j).
 void add_multinomial(RandomStream& rng, long n, const double* weights, long size,
