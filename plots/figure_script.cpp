@@ -140,6 +140,7 @@ FigureScript::FigureScript(const std::string& stem, const FigureOptions& options
                                        "); check that the folder exists and is writable");
   }
   const int width = options_.width_pixels > 0 ? options_.width_pixels : default_width;
+  width_ = width;
   const int height = options_.height_pixels > 0 ? options_.height_pixels : default_height;
   Gnuplot& out = *gp_;
   out << "# allocsim figure " << path_literal(image_path_) << "\n"

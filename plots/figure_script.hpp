@@ -28,6 +28,7 @@ class FigureScript {
   FigureScript& operator=(const FigureScript&) = delete;
 
   Gnuplot& gp() { return *gp_; }
+  int width_pixels() const { return width_; }
   // A title/label font one step larger than the base font, as "Sans,15".
   std::string title_font() const;
 
@@ -38,6 +39,7 @@ class FigureScript {
   FigureOptions options_;
   std::string image_path_, script_path_, script_temporary_, image_temporary_;
   std::unique_ptr<Gnuplot> gp_;
+  int width_ = 0;
   bool finished_ = false;
 };
 

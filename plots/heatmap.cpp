@@ -11,9 +11,10 @@ namespace {
 constexpr std::size_t kMaxPanels = 4;
 constexpr std::size_t kMaxTickLabels = 40;
 constexpr std::size_t kTickLabelChars = 12;  // longer names are cut, with an ellipsis
-// Screen layout (fractions of the canvas); named ticks need wider margins.
-constexpr double kPanelsRight = 0.865, kGap = 0.025, kTop = 0.83;
-constexpr double kColourBarLeft = 0.88, kColourBarWidth = 0.018;
+// Layout: fractions of the canvas height, pixels across (so the colour bar
+// and its label keep their room at any width); named ticks need more room.
+constexpr double kTop = 0.83;
+constexpr double kGapPixels = 30, kColourBarPixels = 18, kColourBarReservePixels = 165;
 
 void check(const AllocationHeatmaps& figure) {
   if (figure.panels.empty() || figure.panels.size() > kMaxPanels) {
@@ -117,12 +118,14 @@ std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std
   if (!(largest > 0)) largest = 1;
   const double floor = figure.smallest_share * largest;
   const long n = figure.panels.front().values.rows(), m = figure.panels.front().values.cols();
-  const double left = named(figure.row_labels, order.rows) ? 0.16 : 0.07;
   const bool named_columns = named(figure.column_labels, order.columns);
   const double bottom = named_columns ? 0.27 : 0.15;
 
   FigureScript script(stem, options, 280 + 360 * static_cast<int>(k), named_columns ? 720 : 640);
   Gnuplot& gp = script.gp();
+  const double pixel = 1.0 / script.width_pixels();
+  const double left = (named(figure.row_labels, order.rows) ? 210 : 85) * pixel;
+  const double panels_right = 1 - kColourBarReservePixels * pixel, gap = kGapPixels * pixel;
   gp << "set multiplot title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font() << "'\n"
      << "set xrange [0.5:" << number(m + 0.5) << "]\nset yrange [" << number(n + 0.5) << ":0.5]\n"
      << "set tmargin at screen " << number(kTop) << "\nset bmargin at screen " << number(bottom) << "\n"
@@ -139,9 +142,9 @@ std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std
   }
   const std::string drawn = figure.log_colour_scale ? "($3 >= " + number(floor) + " ? $3 : NaN)"
                                                     : "($3 > 0 ? $3 : NaN)";
-  const double width = (kPanelsRight - left - kGap * static_cast<double>(k - 1)) / static_cast<double>(k);
+  const double width = (panels_right - left - gap * static_cast<double>(k - 1)) / static_cast<double>(k);
   for (std::size_t p = 0; p < k; ++p) {
-    const double panel_left = left + static_cast<double>(p) * (width + kGap);
+    const double panel_left = left + static_cast<double>(p) * (width + gap);
     gp << "set lmargin at screen " << number(panel_left) << "\nset rmargin at screen "
        << number(panel_left + width) << "\n"
        << "set title " << quote_gnuplot_text(figure.panels[p].title) << "\n"
@@ -149,8 +152,9 @@ std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std
        << tick_command("y", figure.row_labels, order.rows, p == 0)
        << "set ylabel " << (p == 0 ? quote_gnuplot_text("agents i, by " + figure.ordering_name) : "''") << "\n";
     if (p + 1 == k) {
-      gp << "set colorbox user origin screen " << number(kColourBarLeft) << ", screen " << number(bottom)
-         << " size screen " << number(kColourBarWidth) << ", screen " << number(kTop - bottom) << "\n";
+      gp << "set colorbox user origin screen " << number(panels_right + gap * 0.6) << ", screen "
+         << number(bottom) << " size screen " << number(kColourBarPixels * pixel) << ", screen "
+         << number(kTop - bottom) << "\n";
     } else {
       gp << "unset colorbox\n";
     }

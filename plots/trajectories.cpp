@@ -1,4 +1,5 @@
 // Price and marginal-error trajectories of one run over its rounds.
+#include <algorithm>
 #include <cmath>
 
 #include "allocsim/core/error.hpp"
@@ -8,6 +9,9 @@ namespace allocsim::plots {
 namespace {
 
 constexpr std::size_t kMaxNamedPartners = 8;
+// Errors below this are rounding noise of marginals met exactly; a series
+// that never exceeds it is named in the key instead of drawn.
+constexpr double kExactError = 1e-12;
 
 using Rows = std::vector<std::vector<double>>;
 
@@ -15,7 +19,7 @@ using Rows = std::vector<std::vector<double>>;
 Rows series_rows(const std::vector<double>& rounds, const std::vector<double>& values, bool positive_only) {
   Rows rows;
   for (std::size_t k = 0; k < rounds.size() && k < values.size(); ++k) {
-    if (!std::isfinite(values[k]) || (positive_only && !(values[k] > 0))) continue;
+    if (!std::isfinite(values[k]) || (positive_only && !(values[k] > kExactError))) continue;
     rows.push_back({rounds[k], values[k]});
   }
   return rows;
@@ -36,18 +40,33 @@ void price_panel(Gnuplot& gp, const Trajectories& figure) {
   for (const auto& prices : figure.prices) gp.send1d(series_rows(figure.rounds, prices, false));
 }
 
-void error_panel(Gnuplot& gp, const Rows& rows_error, const Rows& columns_error) {
+// The y range of the error panel, with two decades of headroom for the key.
+std::string error_range(const Rows& a, const Rows& b) {
+  std::vector<double> values;
+  for (const Rows* rows : {&a, &b}) {
+    for (const auto& row : *rows) values.push_back(row[1]);
+  }
+  const auto [low, high] = std::minmax_element(values.begin(), values.end());
+  return "set yrange [" + number(*low / 2) + ":" + number(*high * 300) + "]\n";
+}
+
+// One error series: drawn, named as exact (all below kExactError), or absent.
+void error_series(Gnuplot& gp, std::string& sep, const std::vector<double>& given, const Rows& rows,
+                  int style, const std::string& title) {
+  if (given.empty()) return;
+  gp << sep << (rows.empty() ? "NaN" : "'-' using 1:2") << " with lines ls " << style << " title "
+     << markup(title + (rows.empty() ? "  (below 10^{-12} in every window)" : ""));
+  sep = ", ";
+}
+
+void error_panel(Gnuplot& gp, const Trajectories& figure, const Rows& rows_error, const Rows& columns_error) {
   gp << "set title 'marginal errors of each snapshot window'\n"
      << "set ylabel " << markup("L1 error (shares)") << "\n"
-     << "set logscale y\nset format y '10^{%L}'\nset key inside top right\nset rmargin 4\nplot ";
+     << "set logscale y\nset format y '10^{%L}'\nset key inside top right\nset rmargin 4\n"
+     << error_range(rows_error, columns_error) << "plot ";
   std::string sep;
-  if (!rows_error.empty()) {
-    gp << "'-' using 1:2 with lines ls 1 title " << markup("budgets  ||P1 - r||_1");
-    sep = ", ";
-  }
-  if (!columns_error.empty()) {
-    gp << sep << "'-' using 1:2 with lines ls 2 title " << markup("capacities  ||P^T1 - c||_1");
-  }
+  error_series(gp, sep, figure.row_error, rows_error, 1, "budgets  ||P1 - r||_1");
+  error_series(gp, sep, figure.column_error, columns_error, 2, "capacities  ||P^T1 - c||_1");
   gp << "\n";
   if (!rows_error.empty()) gp.send1d(rows_error);
   if (!columns_error.empty()) gp.send1d(columns_error);
@@ -77,7 +96,7 @@ std::string draw_trajectories(const Trajectories& figure, const std::string& ste
      << "set xlabel " << markup("round {/:Italic t}") << "\n"
      << "set lmargin 12\n";
   if (!figure.prices.empty()) price_panel(gp, figure);
-  if (errors) error_panel(gp, rows_error, columns_error);
+  if (errors) error_panel(gp, figure, rows_error, columns_error);
   return script.finish();
 }
 
