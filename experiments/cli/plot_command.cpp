@@ -536,7 +536,7 @@ std::string usage_text() {
          "  epsilon-vs-temperature estimated epsilon (with its interval) against the true temperature\n"
          "  distance-vs-temperature distance to the entropic and exact couplings\n"
          "  estimator-scores       error and coverage on benchmark sets (true_epsilon columns)\n"
-         "Per-run figures are drawn for --run (default: the first run).";
+         "Per-run figures are drawn for --run (default: the run with the smallest run_index).";
 }
 
 }  // namespace
@@ -574,7 +574,10 @@ int plot_command(const Arguments& args) {
     if (!file.nameExists("runs")) throw InputError(path, "is HDF5 but not an allocsim results file (no /runs)");
     const std::vector<RunInfo> runs = read_runs(file);
     if (runs.empty()) throw InputError(path, "holds no runs");
-    const RunInfo* chosen = &runs.front();
+    // Default: the run with the smallest run_index (else the first by name).
+    const RunInfo* chosen = &*std::min_element(runs.begin(), runs.end(), [](const RunInfo& a, const RunInfo& b) {
+      return a.values.number({"run_index"}).value_or(1e300) < b.values.number({"run_index"}).value_or(1e300);
+    });
     if (vm.count("run")) {
       const std::string wanted = vm["run"].as<std::string>();
       const auto it = std::find_if(runs.begin(), runs.end(), [&](const RunInfo& r) { return r.name == wanted; });
