@@ -105,6 +105,18 @@ std::vector<ExperimentKey> build_keys() {
                true),
       real_key("dynamics.reward_noise", "0", "sigma of learn's reward noise, in gain units", 0,
                false),
+      boolean_key("analysis.enabled", "false",
+                  "analyse each run: temperature estimate, distance to the exact and entropic "
+                  "couplings, structure"),
+      real_key("analysis.confidence", "0.95", "level of the temperature interval", 0, true, 1,
+               true),
+      word_key("analysis.binarize", "positive", "link rule of the structure metrics",
+               {"positive", "row-share", "min-count", "revealed-advantage"}),
+      real_key("analysis.threshold", "0", "threshold of the link rule (0 = the rule's own)", 0,
+               false),
+      word_key("analysis.nulls", "none", "null model NODF (and WNODF) are compared with",
+               {"none", "curveball", "bicm", "fixed-margins"}),
+      integer_key("analysis.null_samples", "200", "size of the null ensemble", 2),
       make_key("output.file", KeyKind::path, "results.h5", "results file (HDF5) to write"),
   };
 }

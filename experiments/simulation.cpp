@@ -1,5 +1,7 @@
 #include "allocsim/experiments/simulation.hpp"
 
+#include "allocsim/experiments/allocation_analysis.hpp"
+
 #include <sstream>
 
 #include "allocsim/analysis/exact_transport.hpp"
@@ -68,7 +70,14 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
       run_dynamics(problem, settings.dynamics, settings.scenario.seed, run_index, &recorder,
                    progress);
   recorder.finish(result);
-  group.createGroup("analysis");
+  if (values.boolean("analysis.enabled")) {
+    const AllocationInput input{result.total, problem.gains, problem.access,
+                                {run + "/allocation/total", run + "/scenario/gains",
+                                 run + "/scenario/access"}};
+    write_allocation_report(group, analyze_allocation(input, analysis_options(values, run_index)));
+  } else {
+    group.createGroup("analysis");
+  }
   set_number_attribute(group, "seconds", result.seconds);
   set_integer_attribute(group, "unplaced_units", result.unplaced_units);
   set_text_attribute(group, "status", "complete");

@@ -1,0 +1,220 @@
+#include "allocsim/experiments/allocation_analysis.hpp"
+
+#include <cmath>
+#include <ostream>
+#include <sstream>
+
+#include "allocsim/core/random.hpp"
+#include "allocsim/sim/hdf5_io.hpp"
+
+namespace allocsim {
+
+const char* const kTemperatureCaution =
+    "Caution: a fitted temperature is a model-based summary that assumes the gains are known and "
+    "that choices follow a logit (softmax) rule; it is evidence of an optimisation only when "
+    "compared against null models, and it says nothing about cause.";
+
+namespace {
+
+JsonObject comparison_json(const Comparison& c) {
+  JsonObject json;
+  for (const auto& [name, value] : named_values(c)) {
+    if (name.find("is_forest") != std::string::npos) json.add(name, value != 0);
+    else if (name.find("size") != std::string::npos) json.add(name, static_cast<long long>(value));
+    else json.add(name, value);
+  }
+  return json;
+}
+
+JsonObject temperature_json(const TemperatureResult& t) {
+  JsonObject json;
+  json.add("epsilon", t.epsilon).add("stderr", t.standard_error).add("ci_low", t.ci_low)
+      .add("ci_high", t.ci_high).add("status", to_string(t.status)).add("beta", t.beta)
+      .add("confidence", t.confidence).add("ci_high_infinite", std::isinf(t.ci_high))
+      .add("observed_gain", t.observed_gain).add("fitted_gain", t.fitted_gain)
+      .add("optimum_gain", t.optimum_gain).add("independent_gain", t.independent_gain)
+      .add("solves", static_cast<long long>(t.solves));
+  if (!t.message.empty()) json.add("message", t.message);
+  return json;
+}
+
+std::string percent(double share) {
+  std::ostringstream out;
+  out.precision(3);
+  out << 100 * share << "%";
+  return out.str();
+}
+
+void write_comparison(H5::Group& group, const std::string& prefix, const Comparison& c) {
+  for (const auto& [name, value] : named_values(c)) set_number_attribute(group, prefix + name, value);
+}
+
+// NODF against the null model (on the binarised allocation for the binary
+// models; on the allocation itself, binarised by the same rule, for the
+// weighted one); WNODF too when the null is weighted.
+void compare_structure_with_null(const Matrix& allocation, const AllocationAnalysisOptions& options,
+                                 StructureReport& structure) {
+  const NullOptions& nulls = *options.nulls;
+  const bool weighted = nulls.model == NullModel::fixed_margins;
+  const BinarizeOptions rule = weighted ? options.binarize : BinarizeOptions{};
+  const Matrix observed = weighted ? allocation : to_matrix(binarize(allocation, options.binarize));
+  structure.nodf_null = compare_with_null(
+      [&rule](const Matrix& m) { return nodf(binarize(m, rule)).total; }, observed, nulls);
+  if (weighted) {
+    structure.wnodf_null =
+        compare_with_null([](const Matrix& m) { return wnodf(m).total; }, allocation, nulls);
+  }
+}
+
+JsonObject null_json(const NullComparison& c) {
+  JsonObject json;
+  json.add("model", to_string(c.model)).add("samples", static_cast<long long>(c.samples))
+      .add("seed", static_cast<long long>(c.seed)).add("null_mean", c.null_mean)
+      .add("null_sd", c.null_sd).add("z_score", c.z_score).add("p_upper", c.p_upper)
+      .add("p_two_sided", c.p_two_sided).add("status", to_string(c.status));
+  return json;
+}
+
+void write_null(H5::Group& group, const std::string& prefix, const NullComparison& c) {
+  set_text_attribute(group, prefix + "null_model", to_string(c.model));
+  set_number_attribute(group, prefix + "null_mean", c.null_mean);
+  set_number_attribute(group, prefix + "null_sd", c.null_sd);
+  set_number_attribute(group, prefix + "z_score", c.z_score);
+  set_number_attribute(group, prefix + "p_upper", c.p_upper);
+}
+
+}  // namespace
+
+AllocationAnalysisOptions analysis_options(const ExperimentValues& values, std::uint64_t run_index) {
+  AllocationAnalysisOptions options;
+  options.temperature.confidence = values.real("analysis.confidence");
+  options.binarize.rule = binarize_rule_from_string(values.text("analysis.binarize"));
+  if (values.real("analysis.threshold") > 0) options.binarize.threshold = values.real("analysis.threshold");
+  if (values.text("analysis.nulls") != "none") {
+    NullOptions nulls;
+    nulls.model = null_model_from_string(values.text("analysis.nulls"));
+    nulls.samples = values.integer("analysis.null_samples");
+    std::uint64_t state = static_cast<std::uint64_t>(values.integer("scenario.seed")) ^
+                          (0x9E3779B97F4A7C15ULL * (run_index + 1));
+    nulls.seed = splitmix64(state);
+    options.nulls = nulls;
+  }
+  return options;
+}
+
+AllocationReport analyze_allocation(const AllocationInput& in,
+                                    const AllocationAnalysisOptions& options) {
+  AllocationReport report;
+  report.observed = observe_allocation(in.allocation, in.gains, in.access, in.sources);
+  report.temperature = estimate_temperature(report.observed, options.temperature);
+  report.exact = solve_exact(report.observed.problem);
+  if (report.exact.optimal())
+    report.versus_exact = compare_allocation(report.observed.shares, report.exact.coupling);
+  if (report.temperature.estimated()) {
+    report.has_entropic = true;
+    report.versus_entropic =
+        compare_allocation(report.observed.shares, report.temperature.coupling);
+  }
+  const BinaryMatrix links = binarize(in.allocation, options.binarize);
+  report.structure.connectance = connectance(links);
+  report.structure.nodf = nodf(links);
+  report.structure.wnodf = wnodf(in.allocation);
+  report.structure.spectral_radius = spectral_radius(links);
+  report.binarize_rule = describe(options.binarize);
+  if (options.nulls) compare_structure_with_null(in.allocation, options, report.structure);
+  return report;
+}
+
+
+
+JsonObject allocation_report_json(const AllocationReport& r) {
+  JsonObject json;
+  const ObservedAllocation& o = r.observed;
+  json.add("allocation", o.sources.allocation)
+      .add("agents", static_cast<long long>(o.kept_rows.size() + o.dropped_rows.size()))
+      .add("partners", static_cast<long long>(o.kept_columns.size() + o.dropped_columns.size()))
+      .add("counts", o.counts);
+  if (o.counts) json.add("units", o.units); else json.add_null("units");
+  if (!o.note.empty()) json.add("note", o.note);
+  json.add("temperature", temperature_json(r.temperature));
+  JsonObject exact = comparison_json(r.versus_exact);
+  exact.add("status", to_string(r.exact.status)).add("total_gain", r.exact.total_gain);
+  json.add("exact", exact);
+  if (r.has_entropic) {
+    JsonObject entropic = comparison_json(r.versus_entropic);
+    entropic.add("epsilon", r.temperature.epsilon).add("total_gain", r.temperature.fitted_gain);
+    json.add("entropic", entropic);
+  } else {
+    json.add_null("entropic");
+  }
+  JsonObject structure;
+  structure.add("nodf", r.structure.nodf.total).add("nodf_rows", r.structure.nodf.rows)
+      .add("nodf_columns", r.structure.nodf.columns).add("wnodf", r.structure.wnodf.total)
+      .add("spectral_radius", r.structure.spectral_radius)
+      .add("connectance", r.structure.connectance).add("binarize", r.binarize_rule);
+  if (r.structure.nodf_null) structure.add("nodf_null", null_json(*r.structure.nodf_null));
+  if (r.structure.wnodf_null) structure.add("wnodf_null", null_json(*r.structure.wnodf_null));
+  json.add("structure", structure);
+  return json;
+}
+
+
+void print_allocation_report(std::ostream& out, const AllocationReport& r) {
+  const ObservedAllocation& o = r.observed;
+  const TemperatureResult& t = r.temperature;
+  out.precision(4);
+  out << "allocation " << o.sources.allocation << ": " << o.shares.rows() << " agents x "
+      << o.shares.cols() << " partners, ";
+  if (o.counts) out << o.units << " units (counts)\n"; else out << "shares (no unit count)\n";
+  if (!o.note.empty()) out << "note: " << o.note << "\n";
+  out << "temperature: " << t.brief() << "\n";
+  if (!t.message.empty() && t.estimated()) out << "  note: " << t.message << "\n";
+  out << "  gain: observed " << t.observed_gain << ", exact optimum " << t.optimum_gain
+      << ", independent coupling " << t.independent_gain << "\n";
+  if (r.exact.optimal())
+    out << "versus the exact optimum (" << r.exact.support_size << " links): "
+        << r.versus_exact.brief() << "; " << percent(r.versus_exact.weight_on_top_links)
+        << " of the weight on the allocation's own top " << o.shares.rows() + o.shares.cols() - 1
+        << " cells\n";
+  if (r.has_entropic)
+    out << "versus the entropic coupling at the estimate: " << r.versus_entropic.brief() << "\n";
+  out << "structure (" << r.binarize_rule << "): connectance " << r.structure.connectance
+      << ", NODF " << r.structure.nodf.total << ", WNODF " << r.structure.wnodf.total
+      << ", spectral radius " << r.structure.spectral_radius << "\n";
+  if (r.structure.nodf_null) out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
+  if (r.structure.wnodf_null) out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
+  out << kTemperatureCaution << "\n";
+}
+
+
+void write_allocation_report(H5::Group& run_group, const AllocationReport& r) {
+  if (run_group.nameExists("analysis")) run_group.unlink("analysis");
+  H5::Group group = run_group.createGroup("analysis");
+  const TemperatureResult& t = r.temperature;
+  set_text_attribute(group, "temperature_status", to_string(t.status));
+  set_number_attribute(group, "epsilon", t.epsilon);
+  set_number_attribute(group, "epsilon_stderr", t.standard_error);
+  set_number_attribute(group, "epsilon_ci_low", t.ci_low);
+  set_number_attribute(group, "epsilon_ci_high", t.ci_high);
+  set_number_attribute(group, "confidence", t.confidence);
+  set_number_attribute(group, "observed_gain", t.observed_gain);
+  set_number_attribute(group, "optimum_gain", t.optimum_gain);
+  set_number_attribute(group, "independent_gain", t.independent_gain);
+  write_comparison(group, "exact_", r.versus_exact);
+  if (r.has_entropic) write_comparison(group, "entropic_", r.versus_entropic);
+  set_number_attribute(group, "nodf", r.structure.nodf.total);
+  set_number_attribute(group, "wnodf", r.structure.wnodf.total);
+  set_number_attribute(group, "spectral_radius", r.structure.spectral_radius);
+  set_number_attribute(group, "connectance", r.structure.connectance);
+  set_text_attribute(group, "binarize", r.binarize_rule);
+  if (r.structure.nodf_null) write_null(group, "nodf_", *r.structure.nodf_null);
+  if (r.structure.wnodf_null) write_null(group, "wnodf_", *r.structure.wnodf_null);
+  const auto rows = static_cast<Eigen::Index>(r.observed.kept_rows.size() + r.observed.dropped_rows.size());
+  const auto cols = static_cast<Eigen::Index>(r.observed.kept_columns.size() + r.observed.dropped_columns.size());
+  if (r.exact.optimal())
+    write_matrix(group, "exact", expand_to_input(r.exact.coupling, r.observed, rows, cols));
+  if (r.has_entropic)
+    write_matrix(group, "entropic", expand_to_input(t.coupling, r.observed, rows, cols));
+}
+
+}  // namespace allocsim
