@@ -1,7 +1,9 @@
 #include "allocsim/analysis/marginal_newton.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
+#include <vector>
 
 namespace allocsim {
 namespace {
@@ -24,6 +26,31 @@ State evaluate(const Matrix& x, const Matrix& allowed, const Vector& r, const Ve
   s.objective = s.pi.sum() - a.dot(r) - b.dot(c);
   if (!std::isfinite(s.objective)) s.objective = std::numeric_limits<double>::infinity();
   return s;
+}
+
+// One log-domain Sinkhorn sweep (rows, then columns): always lowers the
+// violation, slowly; used when rounding spoils a Newton step.
+void sinkhorn_sweep(const Matrix& x, const Matrix& allowed, const Vector& r, const Vector& c,
+                    Vector& a, Vector& b) {
+  auto log_sum = [](const std::vector<double>& terms) {
+    const double top = *std::max_element(terms.begin(), terms.end());
+    double sum = 0;
+    for (double t : terms) sum += std::exp(t - top);
+    return top + std::log(sum);
+  };
+  std::vector<double> terms;
+  for (Eigen::Index i = 0; i < x.rows(); ++i) {
+    terms.clear();
+    for (Eigen::Index j = 0; j < x.cols(); ++j)
+      if (allowed(i, j) > 0) terms.push_back(x(i, j) + b(j));
+    if (!terms.empty()) a(i) = std::log(r(i)) - log_sum(terms);
+  }
+  for (Eigen::Index j = 0; j < x.cols(); ++j) {
+    terms.clear();
+    for (Eigen::Index i = 0; i < x.rows(); ++i)
+      if (allowed(i, j) > 0) terms.push_back(x(i, j) + a(i));
+    if (!terms.empty()) b(j) = std::log(c(j)) - log_sum(terms);
+  }
 }
 
 // Newton direction: H [da; db] = -[gr; gc], a eliminated, b from the Schur complement.
@@ -57,22 +84,28 @@ MarginalFit match_columns_smaller(const Matrix& x, const Matrix& allowed, const 
     Vector da, db;
     newton_direction(s, gr, gc, da, db);
     const double slope = gr.dot(da) + gc.dot(db);
-    if (!(slope < 0)) break;
+    if (!(slope < 0)) {  // the direction lost its precision: one Sinkhorn sweep instead
+      sinkhorn_sweep(x, allowed, r, c, a, b);
+      s = evaluate(x, allowed, r, c, a, b);
+      continue;
+    }
+    // Backtracking: a step is taken when D falls enough (Armijo) or, where
+    // rounding hides changes of D near the solution, when the marginal
+    // violation falls by a tenth.
     double t = 1.0;
     State next;
     bool accepted = false;
     for (int halvings = 0; halvings < 40 && !accepted; ++halvings) {
       next = evaluate(x, allowed, r, c, a + t * da, b + t * db);
-      accepted = next.objective <= s.objective + 1e-4 * t * slope;
+      const double v =
+          ((next.row_sum - r).lpNorm<1>() + (next.column_sum - c).lpNorm<1>()) / total;
+      accepted = next.objective <= s.objective + 1e-4 * t * slope || v < 0.9 * fit.violation;
       if (!accepted) t *= 0.5;
     }
     if (!accepted) {
-      // Near the solution rounding hides the decrease of D: take the full
-      // step when it lowers the marginal violation, else stop.
-      t = 1.0;
-      next = evaluate(x, allowed, r, c, a + da, b + db);
-      const double v = ((next.row_sum - r).lpNorm<1>() + (next.column_sum - c).lpNorm<1>()) / total;
-      if (!(v < fit.violation)) break;
+      sinkhorn_sweep(x, allowed, r, c, a, b);
+      s = evaluate(x, allowed, r, c, a, b);
+      continue;
     }
     a += t * da;
     b += t * db;

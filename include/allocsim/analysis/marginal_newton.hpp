@@ -12,7 +12,9 @@
 // decomposition, so the direction along which a + t, b - t leaves pi
 // unchanged does no harm. Converges quadratically near the solution, where
 // Sinkhorn's iterations (the same fixed point, Sinkhorn 1964) slow down
-// when exp(X) is badly conditioned (a small transport temperature). Each
+// when exp(X) is badly conditioned (a small transport temperature). Where
+// rounding spoils a Newton direction (no descent, or no step of the line
+// search helps) one log-domain Sinkhorn sweep is taken instead. Each Newton
 // step costs O(n m min(n, m) + min(n, m)^3).
 //
 // Stopping rule as for entropic transport: (|pi 1 - r|_1 + |pi^T 1 - c|_1) /
