@@ -24,6 +24,7 @@ allocsim_layer(analysis
     analysis/observed_allocation.cpp
     analysis/temperature.cpp
     analysis/marginal_newton.cpp
+    analysis/gains_fit.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
@@ -41,6 +42,7 @@ allocsim_layer(sim
 
 allocsim_layer(experiments
   SOURCES
+    experiments/allocation_analysis.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
     experiments/results_file.cpp
