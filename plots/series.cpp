@@ -142,7 +142,8 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
   gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font() << "'\n"
      << "set xlabel " << markup("true choice temperature {/:Italic T}  (gain units)") << "\n"
      << "set ylabel " << markup("estimated transport temperature {/Symbol e}  (gain units)") << "\n"
-     << "set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n"
+     // log axes need a decade to show a labelled tick; narrower ranges stay linear
+     << (high >= 10 * low ? "set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n" : "")
      << "set xrange [" << number(low) << ":" << number(high) << "]\n"
      << "set yrange [" << number(low) << ":" << number(high) << "]\n"
      << "set size ratio -1\nset key top left\n";

@@ -419,6 +419,12 @@ void draw_metric(PlotContext& context, const std::vector<RunInfo>& runs, const s
     model.erase(0, model.find_first_not_of(' '));
     model.erase(model.find_last_not_of(' ') + 1);
     figure.null_name = model.empty() ? "null model" : model + " null model";
+    for (const auto& run : runs) {  // the analysis names its null model in "<prefix>model"
+      if (const auto named = run.values.text({prefix + "model"})) {
+        figure.null_name = *named + " null model";
+        break;
+      }
+    }
     for (const auto& run : runs) {
       const auto t = run.values.number(kTrueTemperature);
       const auto mean = run.values.number({prefix + "mean"});
@@ -467,7 +473,9 @@ void draw_distances(PlotContext& context, const std::vector<RunInfo>& runs) {
     };
     finite(figure.to_entropic);
     finite(figure.to_exact);
-    if (distinct_x(figure.to_entropic) + distinct_x(figure.to_exact) < 2) continue;
+    std::vector<Point> both = figure.to_entropic;
+    both.insert(both.end(), figure.to_exact.begin(), figure.to_exact.end());
+    if (distinct_x(both) < 2) continue;
     context.record(plots::draw_distance_against_temperature(
         figure, context.stem("distance-vs-temperature"), context.options));
     return;

@@ -131,7 +131,8 @@ std::string draw_metric_against_temperature(const MetricAgainstTemperature& figu
                                             const FigureOptions& options = {});
 
 // Estimated transport temperature against the true choice temperature, log
-// axes, with interval bars and the identity line. Points with an estimate
+// axes (linear when the values span less than a factor 10), with interval
+// bars and the identity line. Points with an estimate
 // that is not a positive finite number (boundary estimates: 0 or infinity)
 // cannot sit on log axes; they are counted in a note on the figure.
 struct TemperatureRecovery {
