@@ -11,6 +11,7 @@ packages=(
   libhdf5-dev catch2 libgnuplot-iostream-dev gnuplot-nox liblemon-dev
   libopenmpi-dev openmpi-bin
   python3 python3-numpy python3-scipy python3-h5py python3-statsmodels
+  clang libclang-rt-dev libomp-dev  # libFuzzer targets (tests/fuzz/run_fuzzers.sh)
 )
 
 missing=()

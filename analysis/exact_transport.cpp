@@ -424,6 +424,35 @@ void fill_solution(const TransportProblem& p, const TransportNetwork& network, d
   result.marginal_error = relative_marginal_error(p, result.coupling);
 }
 
+// Agents and partners whose mass fell below total/mass_units round to zero
+// units and get no flow; says which (indices from 1), or "" when none.
+std::string unshipped_masses(const TransportProblem& p, const Matrix& coupling, double units) {
+  const auto list = [](const std::vector<Eigen::Index>& indices) {
+    std::string text;
+    for (std::size_t k = 0; k < indices.size() && k < 5; ++k) {
+      text += (k ? ", " : "") + std::to_string(indices[k] + 1);
+    }
+    if (indices.size() > 5) text += " and " + std::to_string(indices.size() - 5) + " more";
+    return text;
+  };
+  std::vector<Eigen::Index> agents, partners;
+  for (Eigen::Index i = 0; i < p.agents(); ++i) {
+    if (!(coupling.row(i).sum() > 0)) agents.push_back(i);
+  }
+  for (Eigen::Index j = 0; j < p.partners(); ++j) {
+    if (!(coupling.col(j).sum() > 0)) partners.push_back(j);
+  }
+  if (agents.empty() && partners.empty()) return "";
+  std::string text;
+  if (!agents.empty()) text += "the budgets of agents " + list(agents);
+  if (!partners.empty()) {
+    text += std::string(text.empty() ? "the" : " and the") + " capacities of partners " +
+            list(partners);
+  }
+  return text + " lie below total/mass_units (" + format_mass(1.0 / units) +
+         " of the total mass) and were left unshipped; raise mass_units (at most 1e15)";
+}
+
 ExactResult infeasible_result(const TransportProblem& p, std::string message) {
   ExactResult result;
   result.status = ExactStatus::infeasible;
@@ -564,6 +593,7 @@ ExactResult solve_exact(const TransportProblem& p, const ExactOptions& options) 
   }
   ExactResult result;
   fill_solution(p, network, p.total_mass() / static_cast<double>(units), result);
+  result.message = unshipped_masses(p, result.coupling, static_cast<double>(units));
   return finish(std::move(result));
 }
 

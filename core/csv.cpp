@@ -5,11 +5,14 @@
 #include <cmath>
 #include <cstdlib>
 #include <cstring>
+#include <filesystem>
 #include <fstream>
 #include <optional>
+#include <sstream>
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
 
 namespace allocsim {
 namespace {
@@ -36,11 +39,27 @@ std::optional<double> parse_number(const std::string& field) {
   return value;
 }
 
-std::vector<Record> read_records(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
-    throw InputError(path, std::string("cannot be opened (") + std::strerror(errno) + ")");
+// Refuses a file whose table would not fit in memory, before reading it:
+// each field costs a std::string while the records are held, and a double in
+// the matrix; fields are counted by one pass over the separators.
+void require_memory_for_file(std::ifstream& in, const std::string& path) {
+  std::error_code error;
+  if (!std::filesystem::is_regular_file(path, error)) return;  // a pipe: read as it comes
+  double fields = 1, bytes = 0;
+  char chunk[1 << 16];
+  while (in.read(chunk, sizeof chunk) || in.gcount() > 0) {
+    const std::streamsize count = in.gcount();
+    bytes += static_cast<double>(count);
+    for (std::streamsize k = 0; k < count; ++k) fields += (chunk[k] == ',' || chunk[k] == '\n');
   }
+  in.clear();
+  in.seekg(0);
+  require_memory(bytes + fields * static_cast<double>(sizeof(std::string) + sizeof(double)),
+                 "reading " + format_number(fields) + " fields (" + format_bytes(bytes) + ")",
+                 path, "split the file or use a machine with more memory");
+}
+
+std::vector<Record> read_records(std::istream& in, const std::string& path) {
   std::vector<Record> records;
   std::string line;
   long number = 0;
@@ -96,8 +115,7 @@ std::vector<std::string> split_csv_record(const std::string& line) {
   return fields;
 }
 
-LabeledMatrix read_matrix_csv(const std::string& path) {
-  std::vector<Record> records = read_records(path);
+static LabeledMatrix matrix_from_records(const std::vector<Record>& records, const std::string& path) {
   LabeledMatrix result;
 
   // Label row: any non-numeric cell in the first record.
@@ -150,6 +168,20 @@ LabeledMatrix read_matrix_csv(const std::string& path) {
     }
   }
   return result;
+}
+
+LabeledMatrix read_matrix_csv(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    throw InputError(path, std::string("cannot be opened (") + std::strerror(errno) + ")");
+  }
+  require_memory_for_file(in, path);
+  return matrix_from_records(read_records(in, path), path);
+}
+
+LabeledMatrix parse_matrix_csv(const std::string& text, const std::string& name) {
+  std::istringstream in(text);
+  return matrix_from_records(read_records(in, name), name);
 }
 
 LabeledVector read_vector_csv(const std::string& path) {

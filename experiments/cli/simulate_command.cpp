@@ -7,6 +7,7 @@
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
+#include "allocsim/core/memory_limit.hpp"
 #include "allocsim/experiments/keys.hpp"
 #include "allocsim/experiments/simulation.hpp"
 #include "commands.hpp"
@@ -16,6 +17,22 @@ namespace allocsim::cli {
 namespace {
 
 constexpr double kProgressSeconds = 2.0;
+// Dense n x m matrices of doubles a simulation holds at once (gains twice,
+// rule state, window and cumulative counts, the feasibility check's network):
+// an estimate, used to refuse sizes that cannot fit before anything is built.
+constexpr double kSimulationMatrices = 8;
+
+void require_simulation_memory(const ExperimentValues& values) {
+  const std::string& where = values.where("scenario.agents");
+  require_memory(dense_matrix_bytes(values.real("scenario.agents"), values.real("scenario.partners"),
+                                    kSimulationMatrices),
+                 "a simulation of " + values.text("scenario.agents") + " x " +
+                     values.text("scenario.partners") + " cells",
+                 where == "--scenario.agents" ? where
+                 : where == "default"         ? std::string("scenario.agents")
+                                              : where + ": scenario.agents",
+                 "use fewer agents or partners");
+}
 
 po::options_description simulate_options() {
   po::options_description options("simulate options");
@@ -106,6 +123,7 @@ int simulate_command(const Arguments& args) {
   if (vm.count("out")) command_line.emplace_back("output.file", vm["out"].as<std::string>());
   const std::string config = vm.count("config") ? vm["config"].as<std::string>() : "";
   const ExperimentValues values = experiment_values(config, command_line);
+  require_simulation_memory(values);
 
   SimulationRequest request;
   request.threads = vm["threads"].as<int>();

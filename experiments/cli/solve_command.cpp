@@ -10,6 +10,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
+#include "allocsim/core/memory_limit.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -63,6 +64,18 @@ SolveInputs read_inputs(const po::variables_map& vm) {
   }
   validate(in.problem, in.sources);
   return in;
+}
+
+// Refuses, before solving, a problem whose working memory cannot fit (an
+// estimate in dense n x m matrices of doubles: the exact solver's network
+// holds about 16 per cell, Sinkhorn about 6).
+void require_solve_memory(const SolveInputs& in, const std::string& method) {
+  const double n = static_cast<double>(in.problem.agents());
+  const double m = static_cast<double>(in.problem.partners());
+  require_memory(dense_matrix_bytes(n, m, method == "exact" ? 16 : 6),
+                 "an " + method + " solve of " + std::to_string(in.problem.agents()) + " x " +
+                     std::to_string(in.problem.partners()) + " cells",
+                 in.sources.gains, "use a smaller problem or a machine with more memory");
 }
 
 struct SolveReport {
@@ -153,6 +166,7 @@ int solve_command(const Arguments& args) {
     throw InputError("--method", "'" + method + "' is not one of exact, entropic");
   }
   const SolveInputs in = read_inputs(vm);
+  require_solve_memory(in, method);
   const SolveReport report = method == "exact"
                                  ? solve_exactly(in.problem)
                                  : solve_entropically(in.problem, entropic_options(vm, in.problem));

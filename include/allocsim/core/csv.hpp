@@ -26,7 +26,13 @@ struct LabeledVector {
   std::vector<std::string> labels;  // empty when the file has none
 };
 
+// Refuses up front (InputError naming the file, with the estimate) a file
+// whose fields would not fit in the memory available (core/memory_limit.hpp).
 LabeledMatrix read_matrix_csv(const std::string& path);
+
+// The same, from CSV text held in memory; `name` stands for the file in
+// messages. Used by the fuzzing targets.
+LabeledMatrix parse_matrix_csv(const std::string& text, const std::string& name);
 
 // One value per line, or one row of values (with optional labels).
 LabeledVector read_vector_csv(const std::string& path);
