@@ -337,4 +337,57 @@ ComplexityIndexResult economic_complexity_index(const BinaryMatrix& links) {
   return finish(status, message.str());
 }
 
+GradientOrder correspondence_order(const Matrix& weights) {
+  constexpr int kIterations = 300;
+  const Vector r = weights.rowwise().sum();
+  const Vector c = weights.colwise().sum().transpose();
+  const double total = r.sum();
+  GradientOrder order;
+  order.row_scores = Vector::Zero(r.size());
+  order.column_scores = Vector::Zero(c.size());
+  if (total > 0) {
+    const Vector sr = (r / total).cwiseSqrt(), sc = (c / total).cwiseSqrt();
+    const Vector inv_r = (r.array() > 0).select(1.0 / (r.array() / total).sqrt(), 0.0);
+    const Vector inv_c = (c.array() > 0).select(1.0 / (c.array() / total).sqrt(), 0.0);
+    const Matrix a = inv_r.asDiagonal() * (weights / total) * inv_c.asDiagonal();
+    // Power iteration on A A^T with the trivial pair (sr, sc; value 1) projected out.
+    Vector u = Vector::LinSpaced(r.size(), -1.0, 1.0).cwiseProduct(sr);
+    Vector v(c.size());
+    for (int k = 0; k < kIterations; ++k) {
+      v = a.transpose() * u;
+      v -= sc.dot(v) * sc;
+      u = a * v;
+      u -= sr.dot(u) * sr;
+      const double norm = u.norm();
+      if (!(norm > 0)) break;
+      u /= norm;
+    }
+    order.row_scores = u.cwiseProduct(inv_r);
+    order.column_scores = v.cwiseProduct(inv_c);
+    Eigen::Index heaviest = 0;
+    r.maxCoeff(&heaviest);
+    const double median = [&] {
+      std::vector<double> sorted(order.row_scores.data(), order.row_scores.data() + r.size());
+      std::nth_element(sorted.begin(), sorted.begin() + sorted.size() / 2, sorted.end());
+      return sorted[sorted.size() / 2];
+    }();
+    if (order.row_scores[heaviest] > median) {
+      order.row_scores = -order.row_scores;
+      order.column_scores = -order.column_scores;
+    }
+  }
+  const auto ascending = [](const Vector& scores, const Vector& mass) {
+    Ordering o(static_cast<std::size_t>(scores.size()));
+    std::iota(o.begin(), o.end(), Eigen::Index{0});
+    std::stable_sort(o.begin(), o.end(), [&](Eigen::Index a, Eigen::Index b) {
+      if ((mass[a] > 0) != (mass[b] > 0)) return mass[a] > 0;
+      return scores[a] < scores[b];
+    });
+    return o;
+  };
+  order.rows = ascending(order.row_scores, r);
+  order.columns = ascending(order.column_scores, c);
+  return order;
+}
+
 }  // namespace allocsim

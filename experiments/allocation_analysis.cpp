@@ -121,6 +121,7 @@ AllocationReport analyze_allocation(const AllocationInput& in,
   report.structure.wnodf = wnodf(in.allocation);
   report.structure.spectral_radius = spectral_radius(links);
   report.binarize_rule = describe(options.binarize);
+  report.structure.display_order = correspondence_order(in.allocation);
   if (options.nulls) compare_structure_with_null(in.allocation, options, report.structure);
   return report;
 }
@@ -207,6 +208,12 @@ void write_allocation_report(H5::Group& run_group, const AllocationReport& r) {
   set_number_attribute(group, "spectral_radius", r.structure.spectral_radius);
   set_number_attribute(group, "connectance", r.structure.connectance);
   set_text_attribute(group, "binarize", r.binarize_rule);
+  const auto as_integers = [](const Ordering& order) {
+    return std::vector<long long>(order.begin(), order.end());
+  };
+  write_integers(group, "row_order", as_integers(r.structure.display_order.rows));
+  write_integers(group, "column_order", as_integers(r.structure.display_order.columns));
+  set_text_attribute(group, "order_name", "correspondence analysis");
   if (r.structure.nodf_null) write_null(group, "nodf_", *r.structure.nodf_null);
   if (r.structure.wnodf_null) write_null(group, "wnodf_", *r.structure.wnodf_null);
   const auto rows = static_cast<Eigen::Index>(r.observed.kept_rows.size() + r.observed.dropped_rows.size());

@@ -4,6 +4,7 @@ namespace allocsim::cli {
 
 const std::vector<Command>& all_commands() {
   static const std::vector<Command> commands = {
+      {"demo", "runs the built-in demo sweep, draws it and tells what it found", demo_command},
       {"solve", "exact or entropic transport from CSV files", solve_command},
       {"run", "every run of an experiment file's sweep, in parallel and resumable", run_command},
       {"simulate", "one simulated run of an experiment, written to HDF5", simulate_command},

@@ -303,7 +303,10 @@ void draw_heatmaps(PlotContext& context, const H5::Group& run_group, const RunIn
               << "; its heatmaps show what is there (run 'allocsim analyze' to add the couplings)\n";
   }
   heatmaps.ordering = stored_ordering(run_group);
-  if (!heatmaps.ordering.rows.empty()) heatmaps.ordering_name = "the stored ordering";
+  if (!heatmaps.ordering.rows.empty()) {
+    const auto name = run.values.text({"order_name"});
+    heatmaps.ordering_name = name ? *name : "the stored ordering";
+  }
   heatmaps.row_labels = read_texts(run_group, "scenario/agent_labels");
   heatmaps.column_labels = read_texts(run_group, "scenario/partner_labels");
   context.record(plots::draw_allocation_heatmaps(

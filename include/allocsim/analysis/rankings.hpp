@@ -112,4 +112,18 @@ struct ComplexityIndexResult {
 
 ComplexityIndexResult economic_complexity_index(const BinaryMatrix& links);
 
+// Correspondence-analysis order (reciprocal averaging; Hill 1974, Applied
+// Statistics): rows and columns sorted by their scores on the first
+// non-trivial singular vectors of D_r^{-1/2} W D_c^{-1/2}, where W holds
+// non-negative weights with row sums r and column sums c. It lays a matrix
+// out along its main gradient, so a band (matched traits) or a nested
+// pattern shows along the diagonal; used to display allocations. Rows or
+// columns without weight go last. The orientation keeps the heaviest row
+// in the first half.
+struct GradientOrder {
+  Ordering rows, columns;
+  Vector row_scores, column_scores;
+};
+GradientOrder correspondence_order(const Matrix& weights);
+
 }  // namespace allocsim

@@ -17,6 +17,7 @@
 #include "allocsim/analysis/nestedness.hpp"
 #include "allocsim/analysis/null_models.hpp"
 #include "allocsim/analysis/observed_allocation.hpp"
+#include "allocsim/analysis/rankings.hpp"
 #include "allocsim/analysis/temperature.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/experiments/keys.hpp"
@@ -42,6 +43,7 @@ struct StructureReport {
   double connectance = 0, spectral_radius = 0;
   NestednessParts nodf, wnodf;
   std::optional<NullComparison> nodf_null, wnodf_null;
+  GradientOrder display_order;  // for heatmaps: the allocation along its main gradient
 };
 
 struct AllocationReport {
