@@ -67,6 +67,7 @@ include(plots/style.cmake)
 
 add_executable(allocsim
   experiments/cli/commands.cpp
+  experiments/cli/demo_command.cpp
   experiments/cli/main.cpp
   experiments/cli/mpi_sweep.cpp
   experiments/cli/analyze_command.cpp
