@@ -1,7 +1,7 @@
 // One sweep of log-domain Sinkhorn in C++, written the way a careful
 // implementation does it: rows and columns both streamed row by row over the
 // row-major gains, each cell's exp evaluated once per half-sweep with Eigen's
-// vectorised exp. It is the yardstick for "one log-domain iteration" (the
+// vectorised exp (sums shifted by the current potentials, see the .cpp). It is the yardstick for "one log-domain iteration" (the
 // solver itself runs the scaling form and falls back to log-domain updates
 // only where its kernel underflows).
 #pragma once
