@@ -44,7 +44,11 @@ int main(int argc, char** argv) {
     try {
       return command.run(Arguments(argv + 2, argv + argc));
     } catch (const allocsim::InputError& e) {
-      std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
+      // Errors about the command itself name it already: do not say it twice.
+      std::string message = e.what();
+      const std::string prefix = "allocsim " + name + ": ";
+      if (message.rfind(prefix, 0) == 0) message.erase(0, prefix.size());
+      std::cerr << "allocsim " << name << ": error: " << message << "\n";
       return kExitUsage;
     } catch (const std::exception& e) {
       std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";

@@ -43,11 +43,13 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
     if (positional) parser.positional(*positional);
     const po::parsed_options parsed = parser.run();
     for (const auto& option : parsed.options) {
-      if (!option.unregistered) continue;
+      const bool stray_positional = option.position_key >= 0 && !positional;
+      if (!option.unregistered && !stray_positional) continue;
       const std::string given = option.original_tokens.empty() ? option.string_key
                                                                : option.original_tokens.front();
-      if (given.rfind("-", 0) != 0) {
-        throw InputError("allocsim " + command, "unexpected argument '" + given + "'");
+      if (stray_positional || given.rfind("-", 0) != 0) {
+        throw InputError("allocsim " + command,
+                         "unexpected argument '" + given + "' (see 'allocsim " + command + " --help')");
       }
       const std::string name = given.substr(given.find_first_not_of('-'));
       throw InputError(given, "unknown option (did you mean --" +

@@ -43,9 +43,7 @@ po::options_description simulate_options() {
       ("quiet", "no progress on stderr")
       ("json", "print one JSON object on stdout")
       ("help,h", "show this help");
-  for (const auto& key : experiment_keys()) {
-    options.add_options()(key.name.c_str(), po::value<std::string>(), key.description.c_str());
-  }
+  add_experiment_key_options(options);
   return options;
 }
 
@@ -60,33 +58,6 @@ std::string usage() {
       << "  --json          print one JSON object on stdout\n\n"
       << experiment_keys_help();
   return out.str();
-}
-
-// Parses the command line; unknown options name the nearest valid key.
-po::variables_map parse_arguments(const Arguments& args, const po::options_description& options) {
-  po::variables_map vm;
-  try {
-    const po::parsed_options parsed =
-        po::command_line_parser(args).options(options).allow_unregistered().run();
-    for (const auto& option : parsed.options) {
-      if (!option.unregistered && option.position_key < 0) continue;
-      const std::string given = option.original_tokens.empty() ? option.string_key
-                                                               : option.original_tokens.front();
-      if (option.position_key >= 0) {
-        throw InputError("allocsim simulate", "unexpected argument '" + given +
-                                                  "' (use --config FILE for an experiment file)");
-      }
-      const std::string name = given.substr(given.find_first_not_of('-'));
-      throw InputError(given, "unknown option (did you mean --" +
-                                  nearest_experiment_key(name.substr(0, name.find('='))) + "?)");
-    }
-    po::store(parsed, vm);
-    po::notify(vm);
-  } catch (const po::error& e) {
-    throw InputError("allocsim simulate",
-                     std::string(e.what()) + " (see 'allocsim simulate --help')");
-  }
-  return vm;
 }
 
 ProgressCallback stderr_progress() {
@@ -111,15 +82,12 @@ ProgressCallback stderr_progress() {
 
 int simulate_command(const Arguments& args) {
   const po::options_description options = simulate_options();
-  const po::variables_map vm = parse_arguments(args, options);
+  const po::variables_map vm = parse_with_experiment_keys(args, options, nullptr, "simulate");
   if (vm.count("help")) {
     std::cout << usage();
     return kExitOk;
   }
-  std::vector<std::pair<std::string, std::string>> command_line;
-  for (const auto& key : experiment_keys()) {
-    if (vm.count(key.name)) command_line.emplace_back(key.name, vm[key.name].as<std::string>());
-  }
+  std::vector<std::pair<std::string, std::string>> command_line = experiment_values_given(vm);
   if (vm.count("out")) command_line.emplace_back("output.file", vm["out"].as<std::string>());
   const std::string config = vm.count("config") ? vm["config"].as<std::string>() : "";
   const ExperimentValues values = experiment_values(config, command_line);
