@@ -13,8 +13,11 @@ Each prints one JSON object on stdout. Timers start after the files are read
 (and, for HiGHS, after the sparse constraint matrix is built): they time the
 solve only.
 
-highs: scipy.optimize.linprog(method="highs") on max <G, P> subject to the
-       row and column sums.
+highs: scipy.optimize.linprog(method="highs-ipm") on max <G, P> subject to
+       the row and column sums. Interior point with crossover is the fastest
+       of scipy's HiGHS methods on these dense problems (measured at n = m =
+       300: 1.6 s, against 10 s for the dual simplex that method="highs"
+       picks; at n = m = 1000 the simplex takes minutes).
 plain: textbook Sinkhorn in scaling form, K = exp((G - max G) / eps),
        u = r / (K v), v = c / (K^T u), no stabilisation, no epsilon-scaling.
 log:   textbook log-domain Sinkhorn, f = eps log r - eps LSE_j((G_ij + g_j)/eps),
@@ -49,7 +52,8 @@ def highs(gains, r, c):
                         shape=(n + m, n * m))
     rhs = np.concatenate([r, c])
     start = time.perf_counter()
-    res = linprog(-gains.ravel(), A_eq=matrix, b_eq=rhs, bounds=(0, None), method="highs")
+    res = linprog(-gains.ravel(), A_eq=matrix, b_eq=rhs, bounds=(0, None),
+                  method="highs-ipm")
     seconds = time.perf_counter() - start
     return {"seconds": seconds, "status": int(res.status),
             "total_gain": float(-res.fun) if res.status == 0 else None}
