@@ -43,6 +43,7 @@ allocsim_layer(sim
 allocsim_layer(experiments
   SOURCES
     experiments/allocation_analysis.cpp
+    experiments/benchmark_set.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
     experiments/results_file.cpp
@@ -68,6 +69,8 @@ include(plots/style.cmake)
 add_executable(allocsim
   experiments/cli/commands.cpp
   experiments/cli/demo_command.cpp
+  experiments/cli/score_command.cpp
+  experiments/cli/synth_command.cpp
   experiments/cli/main.cpp
   experiments/cli/mpi_sweep.cpp
   experiments/cli/analyze_command.cpp

@@ -179,6 +179,52 @@ LabeledMatrix read_matrix_csv(const std::string& path) {
   return matrix_from_records(read_records(in, path), path);
 }
 
+CsvTable read_csv_table(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    throw InputError(path, std::string("cannot be opened (") + std::strerror(errno) + ")");
+  }
+  require_memory_for_file(in, path);
+  std::vector<Record> records = read_records(in, path);
+  CsvTable table;
+  table.path = path;
+  table.header = std::move(records.front().fields);
+  for (std::size_t r = 1; r < records.size(); ++r) {
+    if (records[r].fields.size() != table.header.size()) {
+      throw InputError(location(path, records[r].line),
+                       "has " + std::to_string(records[r].fields.size()) +
+                           " fields but the header has " + std::to_string(table.header.size()));
+    }
+    table.rows.push_back(std::move(records[r].fields));
+    table.lines.push_back(records[r].line);
+  }
+  return table;
+}
+
+bool CsvTable::has_column(const std::string& name) const {
+  for (const auto& h : header)
+    if (h == name) return true;
+  return false;
+}
+
+std::size_t CsvTable::column(const std::string& name) const {
+  for (std::size_t k = 0; k < header.size(); ++k)
+    if (header[k] == name) return k;
+  std::string names;
+  for (const auto& h : header) names += (names.empty() ? "" : ", ") + h;
+  throw InputError(path, "has no column '" + name + "' (its header: " + names + ")");
+}
+
+double CsvTable::number(std::size_t row, std::size_t column) const {
+  const std::string& cell = rows[row][column];
+  const auto value = parse_number(cell);
+  if (!value || !std::isfinite(*value)) {
+    throw InputError(location(path, lines[row]),
+                     header[column] + " holds '" + cell + "', which is not a finite number");
+  }
+  return *value;
+}
+
 LabeledMatrix parse_matrix_csv(const std::string& text, const std::string& name) {
   std::istringstream in(text);
   return matrix_from_records(read_records(in, name), name);

@@ -10,6 +10,8 @@ const std::vector<Command>& all_commands() {
       {"simulate", "one simulated run of an experiment, written to HDF5", simulate_command},
       {"inspect", "lists what a results file holds", inspect_command},
       {"analyze", "temperature, distance to optimal couplings and structure of an allocation", analyze_command},
+      {"synth", "writes benchmark sets of allocations with known temperature", synth_command},
+      {"score", "scores an estimator's answers against a benchmark set's truth", score_command},
       {"plot", "draws the figures of a results file", plot_command},
   };
   return commands;

@@ -19,6 +19,8 @@ struct Command {
 int solve_command(const Arguments& args);
 int run_command(const Arguments& args);
 int demo_command(const Arguments& args);
+int synth_command(const Arguments& args);
+int score_command(const Arguments& args);
 int simulate_command(const Arguments& args);
 int inspect_command(const Arguments& args);
 int analyze_command(const Arguments& args);

@@ -40,6 +40,22 @@ LabeledVector read_vector_csv(const std::string& path);
 // 0/1 matrix; any other value is an InputError.
 AccessMask read_access_csv(const std::string& path);
 
+// A table with a header row and cells kept as text (e.g. a benchmark's
+// truth or an estimator's answers). Rows must have the header's width.
+struct CsvTable {
+  std::string path;
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+  std::vector<long> lines;  // file line of each row, for messages
+
+  // Index of a column; InputError naming the file and the columns it has when absent.
+  std::size_t column(const std::string& name) const;
+  bool has_column(const std::string& name) const;
+  // The cell as a finite number; InputError naming file, line and column otherwise.
+  double number(std::size_t row, std::size_t column) const;
+};
+CsvTable read_csv_table(const std::string& path);
+
 // Writes atomically (temporary file, then rename): the file either appears
 // complete or not at all. Labels are written when given. Numbers use the
 // shortest representation that reads back exactly.
