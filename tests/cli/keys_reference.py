@@ -1,0 +1,29 @@
+"""The key reference in docs/experiment-keys.md is the program's own
+`allocsim run --list-keys`, so the documentation cannot fall behind the key
+table."""
+import argparse
+import os
+import subprocess
+import sys
+
+
+def main():
+    parser = argparse.ArgumentParser()
+    parser.add_argument("--allocsim", required=True)
+    parser.add_argument("--data", required=True)
+    args = parser.parse_args()
+    page = os.path.join(os.path.dirname(os.path.abspath(args.data)), "..", "docs", "experiment-keys.md")
+    text = open(page).read()
+    block = text.split("```text\n", 1)[1].rsplit("```", 1)[0]
+    listed = subprocess.run([args.allocsim, "run", "--list-keys"], capture_output=True, text=True,
+                            check=True).stdout
+    if block != listed:
+        print("docs/experiment-keys.md differs from `allocsim run --list-keys`; regenerate it "
+              "(see the top of the page)")
+        return 1
+    print(f"docs/experiment-keys.md matches --list-keys ({listed.count('--')} keys)")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
