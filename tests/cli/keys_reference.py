@@ -19,7 +19,7 @@ def main():
                             check=True).stdout
     if block != listed:
         print("docs/experiment-keys.md differs from `allocsim run --list-keys`; regenerate it "
-              "(see the top of the page)")
+              "with tools/update_key_reference.sh")
         return 1
     print(f"docs/experiment-keys.md matches --list-keys ({listed.count('--')} keys)")
     return 0
