@@ -35,13 +35,15 @@ class SinkhornState {
         r_(problem.budgets / mass_),
         c_(problem.capacities / mass_),
         threads_(std::max(1, std::min<int>(options.threads, static_cast<int>(problem.agents())))) {
-    shifted_gains_ = problem.gains;
     if (problem.access) {
       access_ = problem.access->cast<double>();
-      shifted_gains_ = (access_.array() > 0).select(shifted_gains_, kMinusInfinity);
+      shifted_gains_ = (access_.array() > 0).select(problem.gains, kMinusInfinity);
+      shift_ = shifted_gains_.maxCoeff();
+      shifted_gains_.array() -= shift_;
+    } else {
+      shift_ = problem.gains.maxCoeff();
+      shifted_gains_ = problem.gains.array() - shift_;  // one pass: no copy, then shift
     }
-    shift_ = shifted_gains_.maxCoeff();
-    shifted_gains_.array() -= shift_;
     f_ = Vector::Zero(r_.size());
     g_ = Vector::Zero(c_.size());
   }
@@ -93,7 +95,7 @@ class SinkhornState {
     const double log_mass = std::log(mass_);
     f_.array() += eps_ * u_.array().log();
     g_.array() += eps_ * v_.array().log();
-    const Vector entropy_part = coupling_in_kernel();  // uses u, v and the new g
+    const Vector entropy_part = coupling_in_kernel(gains);  // uses u, v and the new g
     u_.setOnes();
     v_.setOnes();
     // H = -sum pi (log pi - 1), log pi = (G + f + g)/eps + log(mass), over
@@ -105,8 +107,7 @@ class SinkhornState {
     }
     result.marginal_error =
         (row_sums_ - r_).array().abs().sum() + (column_sums_ - c_).array().abs().sum();
-    result.total_gain = (K_.array() * gains.array()).sum() * mass_;
-    K_ *= mass_;
+    result.total_gain = total_gain_;
     result.entropy = -minus_entropy * mass_;
     result.coupling = std::move(K_);
     K_ = Matrix();
@@ -121,14 +122,18 @@ class SinkhornState {
   }
 
   double violation() const { return violation_; }
+  // Whether every cell of the final coupling is finite: its cells are >= 0,
+  // so a row sum is finite exactly when the row is.
+  bool coupling_finite() const { return row_sums_.allFinite(); }
 
  private:
-  // Turns K into the normalised coupling u_i K_ij v_j (sum 1), row by row,
-  // and records its row and column sums. Returns, per row, the sum of
-  // pi_ij (G_ij + g_j) over the cells with pi_ij > 0 (for the entropy).
-  Vector coupling_in_kernel() {
+  // Turns K into the coupling mass * u_i K_ij v_j in one pass, row by row,
+  // recording the normalised row and column sums and the total gain. Returns,
+  // per row, the sum of pi_ij (G_ij + g_j) over the cells with pi_ij > 0 (pi
+  // normalised; for the entropy).
+  Vector coupling_in_kernel(const Matrix& original_gains) {
     const Eigen::Index n = K_.rows(), m = K_.cols();
-    Vector part(n);
+    Vector part(n), gain(n);
     row_sums_.resize(n);
     partial_.resize(m, threads_);
 #pragma omp parallel for num_threads(threads_) schedule(static, 1) if (threads_ > 1)
@@ -142,9 +147,12 @@ class SinkhornState {
         column_sums += row;
         const Eigen::Map<const Vector> gains(shifted_gains_.row(i).data(), m);
         part[i] = (row.array() > 0).select(row.array() * (gains.array() + g_.array()), 0.0).sum();
+        gain[i] = row.dot(Eigen::Map<const Vector>(original_gains.row(i).data(), m));
+        row *= mass_;
       }
     }
     column_sums_ = partial_.rowwise().sum();
+    total_gain_ = gain.sum() * mass_;
     return part;
   }
 
@@ -266,6 +274,7 @@ class SinkhornState {
   Eigen::MatrixXd partial_;  // per-thread column sums of K^T u
   double row_violation_ = 0;  // of the last row pass, before its u update
   Vector row_sums_, column_sums_;  // of the final coupling (normalised)
+  double total_gain_ = 0;          // of the final coupling
   int threads_ = 1;
   double violation_ = std::numeric_limits<double>::infinity();
   long sweeps_ = 0;
@@ -321,10 +330,15 @@ EntropicStatus entropic_status_from_string(const std::string& text) {
 }
 
 double gain_range(const TransportProblem& problem) {
-  if (!problem.access) {
-    if (problem.gains.size() == 0) return 0.0;
-    const double spread = problem.gains.maxCoeff() - problem.gains.minCoeff();
-    return spread > 0 ? spread : 0.0;
+  if (!problem.access) {  // one vectorised pass for both extremes
+    const double* data = problem.gains.data();
+    double low = std::numeric_limits<double>::infinity(), high = -low;
+#pragma omp simd reduction(min : low) reduction(max : high)
+    for (Eigen::Index k = 0; k < problem.gains.size(); ++k) {
+      low = std::min(low, data[k]);
+      high = std::max(high, data[k]);
+    }
+    return high > low ? high - low : 0.0;
   }
   double low = std::numeric_limits<double>::infinity();
   double high = -low;
@@ -382,7 +396,7 @@ EntropicResult solve_entropic(const TransportProblem& problem, const EntropicOpt
     eps = std::max(options.epsilon, eps * options.epsilon_shrink);
   }
   state.finish(result, problem.gains);
-  if (!result.coupling.allFinite()) {
+  if (!state.coupling_finite()) {
     result.status = EntropicStatus::not_converged;
     result.message = "the iterations left floating-point range; try a larger epsilon";
   } else if (converged) {
