@@ -7,6 +7,7 @@
 #include <lemon/network_simplex.h>
 #include <lemon/smart_graph.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <vector>
@@ -72,9 +73,12 @@ void exact_rows(const Settings& settings, Report& report) {
     const auto demand = integer_masses(p.capacities, 1000000000000LL);
     ExactResult ours;
     double bare_gain = 0;
-    const int repeats = n >= 1000 ? settings.repeats : settings.repeats + 2;
-    const double ours_time = best_time(repeats, [&] { ours = solve_exact(p); });
-    const double bare_time = best_time(repeats, [&] { bare_gain = bare_lemon(p, supply, demand); });
+    // Alternating, so that both meet the same background load; best of each.
+    double ours_time = 1e300, bare_time = 1e300;
+    for (int k = 0; k < settings.repeats + 2; ++k) {
+      ours_time = std::min(ours_time, best_time(1, [&] { ours = solve_exact(p); }));
+      bare_time = std::min(bare_time, best_time(1, [&] { bare_gain = bare_lemon(p, supply, demand); }));
+    }
 
     write_instance(p, settings.workdir);
     const PythonAnswer highs =
