@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cstdlib>
+#include <filesystem>
 
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
@@ -83,7 +84,15 @@ std::string attribute_text(const Attributes& attributes, const std::string& name
 
 ResultsReader::ResultsReader(const std::string& path) : path_(path) {
   H5::Exception::dontPrint();
-  if (!H5::H5File::isHdf5(path)) {
+  if (!std::filesystem::is_regular_file(path)) {
+    throw InputError(path, "cannot be read (does the file exist?)");
+  }
+  bool hdf5 = false;
+  try {
+    hdf5 = H5::H5File::isHdf5(path);
+  } catch (const H5::Exception&) {
+  }
+  if (!hdf5) {
     throw InputError(path, "is not an HDF5 file (or cannot be read); give a results file "
                            "written by allocsim simulate or allocsim run");
   }

@@ -14,6 +14,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/experiments/allocation_analysis.hpp"
+#include "allocsim/experiments/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -115,16 +116,11 @@ std::vector<std::string> run_names(const H5::H5File& file, const std::string& pa
 
 int analyze_results_file(const std::string& path, const po::variables_map& vm,
                          const AllocationAnalysisOptions& options) {
-  H5::Exception::dontPrint();
   std::vector<std::string> runs;
   std::vector<AllocationReport> reports;
   try {
-    if (!H5::H5File::isHdf5(path)) throw InputError(path, "is not an HDF5 file");
-  } catch (const H5::Exception&) {
-    throw InputError(path, "cannot be read (does the file exist?)");
-  }
-  try {
-    const H5::H5File file(path, H5F_ACC_RDONLY);
+    ResultsReader reader(path);
+    const H5::H5File& file = reader.file();
     runs = vm.count("run") ? std::vector<std::string>{vm["run"].as<std::string>()}
                            : run_names(file, path);
     for (const std::string& run : runs) {

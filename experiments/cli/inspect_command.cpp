@@ -9,52 +9,18 @@
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/experiments/results_file.hpp"
+#include "allocsim/experiments/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
 namespace allocsim::cli {
 namespace {
 
-using AttributeValue = std::variant<std::string, long long, double>;
-using Attributes = std::vector<std::pair<std::string, AttributeValue>>;
-
 struct DatasetInfo {
   std::string path;  // relative to the group listed
   std::string type;  // float64, int64, uint8, text, ...
   std::vector<hsize_t> shape;
 };
-
-AttributeValue read_attribute(const H5::Attribute& attribute) {
-  const H5::DataType type = attribute.getDataType();
-  switch (type.getClass()) {
-    case H5T_STRING: {
-      std::string text;
-      attribute.read(attribute.getStrType(), text);
-      return text;
-    }
-    case H5T_INTEGER: {
-      long long value = 0;
-      attribute.read(H5::PredType::NATIVE_LLONG, &value);
-      return value;
-    }
-    case H5T_FLOAT: {
-      double value = 0;
-      attribute.read(H5::PredType::NATIVE_DOUBLE, &value);
-      return value;
-    }
-    default:
-      return std::string("(unsupported type)");
-  }
-}
-
-Attributes read_attributes(const H5::H5Object& object) {
-  Attributes attributes;
-  for (int k = 0; k < object.getNumAttrs(); ++k) {
-    const H5::Attribute attribute = object.openAttribute(static_cast<unsigned>(k));
-    attributes.emplace_back(attribute.getName(), read_attribute(attribute));
-  }
-  return attributes;
-}
 
 std::string type_name(const H5::DataSet& ds) {
   const H5::DataType type = ds.getDataType();
@@ -220,20 +186,9 @@ int inspect_command(const Arguments& args) {
     return kExitOk;
   }
   const std::string path = vm["file"].as<std::string>();
-  H5::Exception::dontPrint();
   try {
-    if (!H5::H5File::isHdf5(path)) throw InputError(path, "is not an HDF5 file");
-  } catch (const H5::Exception&) {
-    throw InputError(path, "cannot be read (does the file exist?)");
-  }
-  try {
-    const H5::H5File file(path, H5F_ACC_RDONLY);
-    const Attributes root = read_attributes(file);
-    const AttributeValue* format = find(root, "format");
-    if (!format || text_of(*format) != kResultsFormat || !file.nameExists("runs")) {
-      throw InputError(path, "is HDF5 but not an allocsim results file (no format = " +
-                                 std::string(kResultsFormat) + " attribute)");
-    }
+    ResultsReader reader(path);
+    const H5::H5File& file = reader.file();
     if (vm.count("json")) print_json(path, file);
     else print_listing(path, file, vm.count("experiment") > 0);
   } catch (const H5::Exception& e) {

@@ -22,6 +22,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/experiments/results_file.hpp"
 #include "allocsim/plots/figures.hpp"
+#include "allocsim/experiments/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -574,15 +575,9 @@ int plot_command(const Arguments& args) {
   context.options.script_only = vm.count("script-only") > 0;
   const std::string path = vm["file"].as<std::string>();
 
-  H5::Exception::dontPrint();
   try {
-    if (!H5::H5File::isHdf5(path)) throw InputError(path, "is not an HDF5 file");
-  } catch (const H5::Exception&) {
-    throw InputError(path, "cannot be read (does the file exist?)");
-  }
-  try {
-    const H5::H5File file(path, H5F_ACC_RDONLY);
-    if (!file.nameExists("runs")) throw InputError(path, "is HDF5 but not an allocsim results file (no /runs)");
+    ResultsReader reader(path);
+    const H5::H5File& file = reader.file();
     const std::vector<RunInfo> runs = read_runs(file);
     if (runs.empty()) throw InputError(path, "holds no runs");
     // Default: the run with the smallest run_index (else the first by name).
