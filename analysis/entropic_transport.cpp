@@ -371,6 +371,7 @@ std::string EntropicResult::brief() const {
 EntropicResult solve_entropic(const TransportProblem& problem, const EntropicOptions& options,
                               const DualPotentials* warm_start, double warm_epsilon) {
   options.validate();
+  validate(problem);  // negative, non-finite or unbalanced masses are input errors, not NaN
   const auto started = std::chrono::steady_clock::now();
   EntropicResult result;
   result.epsilon = options.epsilon;

@@ -10,7 +10,8 @@
 // absorbs u and v into f and g whenever they grow large (Schmitzer 2019,
 // SIAM J. Sci. Comput.), switches to exact log-domain updates for rows or
 // columns whose kernel underflows, and reaches small epsilon by
-// epsilon-scaling: it starts at the gain range and shrinks geometrically,
+// epsilon-scaling: it starts at gain range / 600 (the smallest epsilon whose
+// first kernel stays within floating-point range) and shrinks geometrically,
 // warm-starting the potentials. It stays finite down to epsilon = 1e-6 of the
 // gain range; below that it may report not_converged, never NaN.
 //
