@@ -49,6 +49,13 @@ void write_comparison(H5::Group& group, const std::string& prefix, const Compari
   for (const auto& [name, value] : named_values(c)) set_number_attribute(group, prefix + name, value);
 }
 
+// WNODF of the weights on the links the rule keeps: with every cell > 0 (a
+// dense allocation) the degrees tie and WNODF is 0 by definition, so the
+// weights are read on the same links as NODF.
+NestednessParts weights_on_links(const Matrix& allocation, const BinarizeOptions& rule) {
+  return wnodf(allocation.cwiseProduct(to_matrix(binarize(allocation, rule))));
+}
+
 // NODF against the null model (on the binarised allocation for the binary
 // models; on the allocation itself, binarised by the same rule, for the
 // weighted one); WNODF too when the null is weighted.
@@ -61,8 +68,8 @@ void compare_structure_with_null(const Matrix& allocation, const AllocationAnaly
   structure.nodf_null = compare_with_null(
       [&rule](const Matrix& m) { return nodf(binarize(m, rule)).total; }, observed, nulls);
   if (weighted) {
-    structure.wnodf_null =
-        compare_with_null([](const Matrix& m) { return wnodf(m).total; }, allocation, nulls);
+    structure.wnodf_null = compare_with_null(
+        [&rule](const Matrix& m) { return weights_on_links(m, rule).total; }, allocation, nulls);
   }
 }
 
@@ -118,7 +125,7 @@ AllocationReport analyze_allocation(const AllocationInput& in,
   const BinaryMatrix links = binarize(in.allocation, options.binarize);
   report.structure.connectance = connectance(links);
   report.structure.nodf = nodf(links);
-  report.structure.wnodf = wnodf(in.allocation);
+  report.structure.wnodf = weights_on_links(in.allocation, options.binarize);
   report.structure.spectral_radius = spectral_radius(links);
   report.binarize_rule = describe(options.binarize);
   report.structure.display_order = correspondence_order(in.allocation);
@@ -180,7 +187,7 @@ void print_allocation_report(std::ostream& out, const AllocationReport& r) {
   if (r.has_entropic)
     out << "versus the entropic coupling at the estimate: " << r.versus_entropic.brief() << "\n";
   out << "structure (" << r.binarize_rule << "): connectance " << r.structure.connectance
-      << ", NODF " << r.structure.nodf.total << ", WNODF " << r.structure.wnodf.total
+      << ", NODF " << r.structure.nodf.total << ", WNODF (on those links) " << r.structure.wnodf.total
       << ", spectral radius " << r.structure.spectral_radius << "\n";
   if (r.structure.nodf_null) out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
   if (r.structure.wnodf_null) out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
