@@ -123,12 +123,16 @@ int demo_command(const Arguments& args) {
   po::options_description options("demo options");
   options.add_options()
       ("out-dir", po::value<std::string>()->default_value("allocsim-demo"),
-       "new folder for the results and figures")
+       "new folder for the results and figures (default: allocsim-demo, or -2, -3, ... when taken)")
       ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
        "worker threads");
   po::variables_map vm;
   if (!parse_or_help(args, options, {}, vm, "demo", "[--out-dir DIR] [--threads N]")) return kExitOk;
-  const fs::path folder = vm["out-dir"].as<std::string>();
+  fs::path folder = vm["out-dir"].as<std::string>();
+  // The default folder is taken: run again into allocsim-demo-2, -3, ...
+  for (int k = 2; vm["out-dir"].defaulted() && fs::exists(folder) && !fs::is_empty(folder); ++k) {
+    folder = "allocsim-demo-" + std::to_string(k);
+  }
   if (fs::exists(folder) && !fs::is_empty(folder)) {
     throw InputError(folder.string(), "exists and is not empty; the demo writes into a new folder "
                                       "(remove it or give --out-dir)");
