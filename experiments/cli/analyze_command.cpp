@@ -73,45 +73,19 @@ AllocationInput read_csv_input(const po::variables_map& vm) {
 
 // ---- results files ----
 
-Matrix read_matrix_dataset(const H5::Group& group, const std::string& name,
-                           const std::string& where) {
-  if (!group.nameExists(name)) throw InputError(where, "has no dataset '" + name + "'");
-  const H5::DataSet ds = group.openDataSet(name);
-  hsize_t dims[2] = {0, 0};
-  if (ds.getSpace().getSimpleExtentNdims() != 2)
-    throw InputError(where + "/" + name, "is not a matrix");
-  ds.getSpace().getSimpleExtentDims(dims);
-  Matrix values(dims[0], dims[1]);
-  ds.read(values.data(), H5::PredType::NATIVE_DOUBLE);
-  return values;
-}
-
-AllocationInput read_run(const H5::H5File& file, const std::string& path, const std::string& run) {
-  const std::string where = path + ":/runs/" + run;
-  if (!file.nameExists("runs") || !file.openGroup("runs").nameExists(run))
-    throw InputError(path, "has no run '" + run + "'");
-  const H5::Group group = file.openGroup("runs/" + run);
-  if (!group.nameExists("scenario") || !group.nameExists("allocation"))
-    throw InputError(where, "lacks its scenario or allocation group");
-  const H5::Group scenario = group.openGroup("scenario");
+// What a run of a results file holds for the analysis: its total
+// allocation after burn-in and its scenario.
+AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
+  reader.require_run(run);
+  const std::string where = reader.path() + ":/runs/" + run;
+  const TransportProblem scenario = reader.read_scenario(run);
   AllocationInput in;
   in.sources = {where + "/allocation/total", where + "/scenario/gains",
                 where + "/scenario/access"};
-  in.gains = read_matrix_dataset(scenario, "gains", where + "/scenario");
-  in.allocation = read_matrix_dataset(group.openGroup("allocation"), "total", where + "/allocation");
-  if (scenario.nameExists("access")) {
-    const Matrix access = read_matrix_dataset(scenario, "access", where + "/scenario");
-    in.access = (access.array() != 0).cast<std::uint8_t>();
-  }
+  in.gains = scenario.gains;
+  in.access = scenario.access;
+  in.allocation = reader.read_matrix(run, "allocation/total");
   return in;
-}
-
-std::vector<std::string> run_names(const H5::H5File& file, const std::string& path) {
-  if (!file.nameExists("runs")) throw InputError(path, "has no /runs group (not a results file?)");
-  const H5::Group runs = file.openGroup("runs");
-  std::vector<std::string> names;
-  for (hsize_t k = 0; k < runs.getNumObjs(); ++k) names.push_back(runs.getObjnameByIdx(k));
-  return names;
 }
 
 int analyze_results_file(const std::string& path, const po::variables_map& vm,
@@ -119,12 +93,11 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
   std::vector<std::string> runs;
   std::vector<AllocationReport> reports;
   try {
-    ResultsReader reader(path);
-    const H5::H5File& file = reader.file();
-    runs = vm.count("run") ? std::vector<std::string>{vm["run"].as<std::string>()}
-                           : run_names(file, path);
+    const ResultsReader reader(path);
+    runs = vm.count("run") ? std::vector<std::string>{vm["run"].as<std::string>()} : reader.runs();
+    if (runs.empty()) throw InputError(path, "holds no runs");
     for (const std::string& run : runs) {
-      const AllocationInput in = read_run(file, path, run);
+      const AllocationInput in = read_run(reader, run);
       if (!vm.count("json")) std::cerr << "analyzing " << run << "\n";
       reports.push_back(analyze_allocation(in, options));
     }
