@@ -16,7 +16,7 @@
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/engine.hpp"
-#include "allocsim/sim/recorder.hpp"
+#include "allocsim/results/recorder.hpp"
 #include "allocsim/sim/rules.hpp"
 #include "bench.hpp"
 #include "instances.hpp"

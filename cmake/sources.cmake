@@ -25,34 +25,41 @@ allocsim_layer(analysis
     analysis/temperature.cpp
     analysis/marginal_newton.cpp
     analysis/gains_fit.cpp
+    analysis/allocation_report.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
   SOURCES
     sim/engine.cpp
     sim/gumbel_rule.cpp
-    sim/hdf5_io.cpp
     sim/learn_rule.cpp
     sim/price_rule.cpp
     sim/queue_rule.cpp
-    sim/recorder.cpp
     sim/rules.cpp
     sim/scenario.cpp
-  LINKS allocsim::core hdf5::hdf5_cpp hdf5::hdf5)
+  LINKS allocsim::core)
+
+# The results file: the one layer that knows HDF5 and the file layout.
+allocsim_layer(results
+  SOURCES
+    results/hdf5_io.cpp
+    results/recorder.cpp
+    results/report_writer.cpp
+    results/results_file.cpp
+    results/results_reader.cpp
+    results/run_store.cpp
+  LINKS allocsim::sim allocsim::analysis hdf5::hdf5_cpp hdf5::hdf5)
 
 allocsim_layer(experiments
   SOURCES
-    experiments/allocation_analysis.cpp
+    experiments/analysis_settings.cpp
     experiments/benchmark_set.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
-    experiments/results_file.cpp
-    experiments/results_reader.cpp
-    experiments/run_store.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
     experiments/sweep_runner.cpp
-  LINKS allocsim::sim allocsim::analysis Boost::program_options)
+  LINKS allocsim::results Boost::program_options)
 
 allocsim_layer(plots
   SOURCES
@@ -67,21 +74,21 @@ allocsim_layer(plots
 include(plots/style.cmake)
 
 add_executable(allocsim
-  experiments/cli/commands.cpp
-  experiments/cli/demo_command.cpp
-  experiments/cli/score_command.cpp
-  experiments/cli/synth_command.cpp
-  experiments/cli/main.cpp
-  experiments/cli/mpi_sweep.cpp
-  experiments/cli/analyze_command.cpp
-  experiments/cli/inspect_command.cpp
-  experiments/cli/plot_command.cpp
-  experiments/cli/options.cpp
-  experiments/cli/run_command.cpp
-  experiments/cli/simulate_command.cpp
-  experiments/cli/solve_command.cpp)
+  cli/commands.cpp
+  cli/demo_command.cpp
+  cli/score_command.cpp
+  cli/synth_command.cpp
+  cli/main.cpp
+  cli/mpi_sweep.cpp
+  cli/analyze_command.cpp
+  cli/inspect_command.cpp
+  cli/plot_command.cpp
+  cli/options.cpp
+  cli/run_command.cpp
+  cli/simulate_command.cpp
+  cli/solve_command.cpp)
 target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
-target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/experiments/cli)
+target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/cli)
 target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis allocsim::plots Boost::program_options)
 if(MPI_CXX_FOUND)
   target_compile_definitions(allocsim PRIVATE ALLOCSIM_WITH_MPI)

@@ -14,9 +14,9 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/engine.hpp"
-#include "allocsim/sim/hdf5_io.hpp"
+#include "allocsim/results/hdf5_io.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {

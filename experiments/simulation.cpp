@@ -1,13 +1,15 @@
 #include "allocsim/experiments/simulation.hpp"
 
-#include "allocsim/experiments/allocation_analysis.hpp"
+#include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/experiments/analysis_settings.hpp"
+#include "allocsim/results/report_writer.hpp"
 
 #include <sstream>
 
 #include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/sim/hdf5_io.hpp"
-#include "allocsim/sim/recorder.hpp"
+#include "allocsim/results/hdf5_io.hpp"
+#include "allocsim/results/recorder.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {

@@ -12,10 +12,10 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/experiments/results_reader.hpp"
-#include "allocsim/experiments/run_store.hpp"
+#include "allocsim/results/results_reader.hpp"
+#include "allocsim/results/run_store.hpp"
 #include "allocsim/experiments/simulation.hpp"
-#include "allocsim/sim/hdf5_io.hpp"
+#include "allocsim/results/hdf5_io.hpp"
 
 namespace allocsim {
 namespace {

@@ -10,7 +10,7 @@
 
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/engine.hpp"
 
 namespace allocsim {

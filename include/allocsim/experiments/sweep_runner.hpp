@@ -16,7 +16,7 @@
 
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/experiments/sweep.hpp"
 
 namespace allocsim {

@@ -13,8 +13,9 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
-#include "allocsim/experiments/allocation_analysis.hpp"
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/results/report_writer.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 

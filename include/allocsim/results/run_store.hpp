@@ -16,7 +16,7 @@
 #include <string>
 #include <vector>
 
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 
 namespace allocsim {
 

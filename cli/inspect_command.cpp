@@ -8,8 +8,8 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/csv.hpp"
-#include "allocsim/experiments/results_file.hpp"
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/results/results_file.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 

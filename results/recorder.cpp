@@ -1,8 +1,8 @@
-#include "allocsim/sim/recorder.hpp"
+#include "allocsim/results/recorder.hpp"
 
 #include <algorithm>
 
-#include "allocsim/sim/hdf5_io.hpp"
+#include "allocsim/results/hdf5_io.hpp"
 
 namespace allocsim {
 namespace {

@@ -6,7 +6,7 @@
 # results file at the end. If the job is killed (time limit, node failure),
 # submit it again unchanged: finished runs are kept and only the rest run.
 #
-#   sbatch experiments/cluster_job.sh experiments/temperature_sweep.ini
+#   sbatch examples/experiments/cluster_job.sh examples/experiments/temperature_sweep.ini
 #
 #SBATCH --job-name=allocsim-sweep
 #SBATCH --nodes=4

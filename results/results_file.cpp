@@ -1,4 +1,4 @@
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 
 #include <cerrno>
 #include <cstdio>
@@ -7,7 +7,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/sim/hdf5_io.hpp"
+#include "allocsim/results/hdf5_io.hpp"
 
 namespace allocsim {
 

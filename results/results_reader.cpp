@@ -1,4 +1,4 @@
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/results/results_reader.hpp"
 
 #include <algorithm>
 #include <cstdlib>
@@ -6,7 +6,7 @@
 
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 
 namespace allocsim {
 namespace {

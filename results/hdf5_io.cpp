@@ -1,4 +1,4 @@
-#include "allocsim/sim/hdf5_io.hpp"
+#include "allocsim/results/hdf5_io.hpp"
 
 #include <algorithm>
 

@@ -1,4 +1,4 @@
-#include "allocsim/experiments/run_store.hpp"
+#include "allocsim/results/run_store.hpp"
 
 #include <H5Cpp.h>
 
@@ -11,8 +11,8 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/experiments/results_file.hpp"
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/results/results_file.hpp"
+#include "allocsim/results/results_reader.hpp"
 
 namespace allocsim {
 namespace fs = std::filesystem;

@@ -20,9 +20,9 @@
 
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/experiments/results_file.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/plots/figures.hpp"
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 

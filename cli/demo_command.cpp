@@ -13,7 +13,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/experiments/results_reader.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
 #include "commands.hpp"
 #include "options.hpp"

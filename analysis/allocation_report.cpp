@@ -1,11 +1,9 @@
-#include "allocsim/experiments/allocation_analysis.hpp"
+#include "allocsim/analysis/allocation_report.hpp"
 
 #include <cmath>
 #include <ostream>
 #include <sstream>
 
-#include "allocsim/core/random.hpp"
-#include "allocsim/sim/hdf5_io.hpp"
 
 namespace allocsim {
 
@@ -45,10 +43,6 @@ std::string percent(double share) {
   return out.str();
 }
 
-void write_comparison(H5::Group& group, const std::string& prefix, const Comparison& c) {
-  for (const auto& [name, value] : named_values(c)) set_number_attribute(group, prefix + name, value);
-}
-
 // WNODF of the weights on the links the rule keeps: with every cell > 0 (a
 // dense allocation) the degrees tie and WNODF is 0 by definition, so the
 // weights are read on the same links as NODF.
@@ -82,32 +76,7 @@ JsonObject null_json(const NullComparison& c) {
   return json;
 }
 
-void write_null(H5::Group& group, const std::string& prefix, const NullComparison& c) {
-  set_text_attribute(group, prefix + "null_model", to_string(c.model));
-  set_number_attribute(group, prefix + "null_mean", c.null_mean);
-  set_number_attribute(group, prefix + "null_sd", c.null_sd);
-  set_number_attribute(group, prefix + "z_score", c.z_score);
-  set_number_attribute(group, prefix + "p_upper", c.p_upper);
-}
-
 }  // namespace
-
-AllocationAnalysisOptions analysis_options(const ExperimentValues& values, std::uint64_t run_index) {
-  AllocationAnalysisOptions options;
-  options.temperature.confidence = values.real("analysis.confidence");
-  options.binarize.rule = binarize_rule_from_string(values.text("analysis.binarize"));
-  if (values.real("analysis.threshold") > 0) options.binarize.threshold = values.real("analysis.threshold");
-  if (values.text("analysis.nulls") != "none") {
-    NullOptions nulls;
-    nulls.model = null_model_from_string(values.text("analysis.nulls"));
-    nulls.samples = values.integer("analysis.null_samples");
-    std::uint64_t state = static_cast<std::uint64_t>(values.integer("scenario.seed")) ^
-                          (0x9E3779B97F4A7C15ULL * (run_index + 1));
-    nulls.seed = splitmix64(state);
-    options.nulls = nulls;
-  }
-  return options;
-}
 
 AllocationReport analyze_allocation(const AllocationInput& in,
                                     const AllocationAnalysisOptions& options) {
@@ -132,8 +101,6 @@ AllocationReport analyze_allocation(const AllocationInput& in,
   if (options.nulls) compare_structure_with_null(in.allocation, options, report.structure);
   return report;
 }
-
-
 
 JsonObject allocation_report_json(const AllocationReport& r) {
   JsonObject json;
@@ -166,7 +133,6 @@ JsonObject allocation_report_json(const AllocationReport& r) {
   return json;
 }
 
-
 void print_allocation_report(std::ostream& out, const AllocationReport& r) {
   const ObservedAllocation& o = r.observed;
   const TemperatureResult& t = r.temperature;
@@ -192,43 +158,6 @@ void print_allocation_report(std::ostream& out, const AllocationReport& r) {
   if (r.structure.nodf_null) out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
   if (r.structure.wnodf_null) out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
   out << kTemperatureCaution << "\n";
-}
-
-
-void write_allocation_report(H5::Group& run_group, const AllocationReport& r) {
-  if (run_group.nameExists("analysis")) run_group.unlink("analysis");
-  H5::Group group = run_group.createGroup("analysis");
-  const TemperatureResult& t = r.temperature;
-  set_text_attribute(group, "temperature_status", to_string(t.status));
-  set_number_attribute(group, "epsilon", t.epsilon);
-  set_number_attribute(group, "epsilon_stderr", t.standard_error);
-  set_number_attribute(group, "epsilon_ci_low", t.ci_low);
-  set_number_attribute(group, "epsilon_ci_high", t.ci_high);
-  set_number_attribute(group, "confidence", t.confidence);
-  set_number_attribute(group, "observed_gain", t.observed_gain);
-  set_number_attribute(group, "optimum_gain", t.optimum_gain);
-  set_number_attribute(group, "independent_gain", t.independent_gain);
-  write_comparison(group, "exact_", r.versus_exact);
-  if (r.has_entropic) write_comparison(group, "entropic_", r.versus_entropic);
-  set_number_attribute(group, "nodf", r.structure.nodf.total);
-  set_number_attribute(group, "wnodf", r.structure.wnodf.total);
-  set_number_attribute(group, "spectral_radius", r.structure.spectral_radius);
-  set_number_attribute(group, "connectance", r.structure.connectance);
-  set_text_attribute(group, "binarize", r.binarize_rule);
-  const auto as_integers = [](const Ordering& order) {
-    return std::vector<long long>(order.begin(), order.end());
-  };
-  write_integers(group, "row_order", as_integers(r.structure.display_order.rows));
-  write_integers(group, "column_order", as_integers(r.structure.display_order.columns));
-  set_text_attribute(group, "order_name", "correspondence analysis");
-  if (r.structure.nodf_null) write_null(group, "nodf_", *r.structure.nodf_null);
-  if (r.structure.wnodf_null) write_null(group, "wnodf_", *r.structure.wnodf_null);
-  const auto rows = static_cast<Eigen::Index>(r.observed.kept_rows.size() + r.observed.dropped_rows.size());
-  const auto cols = static_cast<Eigen::Index>(r.observed.kept_columns.size() + r.observed.dropped_columns.size());
-  if (r.exact.optimal())
-    write_matrix(group, "exact", expand_to_input(r.exact.coupling, r.observed, rows, cols));
-  if (r.has_entropic)
-    write_matrix(group, "entropic", expand_to_input(t.coupling, r.observed, rows, cols));
 }
 
 }  // namespace allocsim

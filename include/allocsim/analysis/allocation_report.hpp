@@ -2,10 +2,9 @@
 // the temperature estimate, the comparison with the exact coupling and with
 // the entropic coupling at the estimate, the structure metrics, and (when
 // asked) NODF and WNODF against a null model. Its results go to JSON, to a
-// run's analysis/ group, and to the sweep's summary table.
+// run's analysis/ group (results/report_writer.hpp), and to the sweep's
+// summary table. No HDF5 here: it works on any matrix.
 #pragma once
-
-#include <H5Cpp.h>
 
 #include <cstdint>
 #include <optional>
@@ -20,7 +19,6 @@
 #include "allocsim/analysis/rankings.hpp"
 #include "allocsim/analysis/temperature.hpp"
 #include "allocsim/core/json.hpp"
-#include "allocsim/experiments/keys.hpp"
 
 namespace allocsim {
 
@@ -56,10 +54,6 @@ struct AllocationReport {
   std::string binarize_rule;
 };
 
-// The options an experiment's [analysis] keys ask for; the null ensemble's
-// seed is derived from (scenario.seed, run index), like every random draw.
-AllocationAnalysisOptions analysis_options(const ExperimentValues& values, std::uint64_t run_index);
-
 AllocationReport analyze_allocation(const AllocationInput& input,
                                     const AllocationAnalysisOptions& options);
 
@@ -68,10 +62,5 @@ JsonObject allocation_report_json(const AllocationReport& report);
 
 // A readable report, ending with the caution.
 void print_allocation_report(std::ostream& out, const AllocationReport& report);
-
-// Replaces <run>/analysis with the report: scalar metrics as attributes
-// (these become /summary columns in a sweep), the exact and entropic
-// couplings as datasets.
-void write_allocation_report(H5::Group& run_group, const AllocationReport& report);
 
 }  // namespace allocsim
