@@ -25,6 +25,10 @@ allocsim_layer(analysis
     analysis/temperature.cpp
     analysis/marginal_newton.cpp
     analysis/gains_fit.cpp
+    analysis/model_table.cpp
+    analysis/trait_features.cpp
+    analysis/latent_association.cpp
+    analysis/gains_reconstruction.cpp
     analysis/allocation_report.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 

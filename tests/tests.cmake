@@ -32,3 +32,5 @@ allocsim_cli_test(analyze_errors analyze_errors.py)
 allocsim_cli_test(demo_run demo_run.py)
 allocsim_cli_test(synth_score synth_score.py)
 allocsim_cli_test(keys_reference keys_reference.py)
+add_executable(gains_probe gains_probe.cpp)  # driver of the two checks below
+target_link_libraries(gains_probe PRIVATE allocsim::analysis)
