@@ -34,3 +34,4 @@ allocsim_cli_test(synth_score synth_score.py)
 allocsim_cli_test(keys_reference keys_reference.py)
 add_executable(gains_probe gains_probe.cpp)  # driver of the two checks below
 target_link_libraries(gains_probe PRIVATE allocsim::analysis)
+allocsim_unit_test(temperature_boundary allocsim::sim allocsim::analysis)
