@@ -35,3 +35,6 @@ allocsim_cli_test(keys_reference keys_reference.py)
 add_executable(gains_probe gains_probe.cpp)  # driver of the two checks below
 target_link_libraries(gains_probe PRIVATE allocsim::analysis)
 allocsim_unit_test(temperature_boundary allocsim::sim allocsim::analysis)
+allocsim_reference_test(gains_vs_glm gains_vs_glm.py --probe $<TARGET_FILE:gains_probe>)
+allocsim_reference_test(latent_vs_scipy latent_vs_scipy.py --probe $<TARGET_FILE:gains_probe>)
+allocsim_unit_test(gains_reconstruction allocsim::analysis)
