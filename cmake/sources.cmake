@@ -85,6 +85,7 @@ add_executable(allocsim
   cli/main.cpp
   cli/mpi_sweep.cpp
   cli/analyze_command.cpp
+  cli/gains_reconstruction_output.cpp
   cli/inspect_command.cpp
   cli/plot_command.cpp
   cli/options.cpp
