@@ -142,7 +142,12 @@ GainsReconstructionReport reconstruct_from_options(const po::variables_map& vm,
   GainsReconstructionOptions options;
   if (vm.count("confidence")) options.features.confidence = vm["confidence"].as<double>();
   if (vm.count("latent-rank")) options.latent = latent_options(vm);
-  return reconstruct_gains(observed, input, options);
+  try {
+    return reconstruct_gains(observed, input, options);
+  } catch (const InputError& e) {
+    if (e.where() != "latent rank") throw;
+    throw InputError("--latent-rank", std::string(e.what()).substr(e.where().size() + 2));
+  }
 }
 
 std::optional<GainsReconstructionReport> reconstruct_if_asked(const po::variables_map& vm,
