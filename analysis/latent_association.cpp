@@ -304,6 +304,10 @@ LatentAssociationResult fit_latent_association(const ObservedAllocation& o,
                      std::to_string(options.rank) + " is not below " + std::to_string(saturated) +
                          ", the rank that reproduces this " + std::to_string(t.p.rows()) + " x " +
                          std::to_string(t.p.cols()) + " table exactly (the saturated model)");
+  if (options.rank < 0 && !(o.units > 0))
+    throw InputError("latent rank",
+                     "auto chooses the rank by BIC, which needs counts (the number of units N); "
+                     "give a rank, or the number of units the shares were observed on");
   const long top = options.rank >= 0 ? options.rank : std::min(options.max_rank, saturated - 1);
 
   LatentAssociationResult result;
@@ -326,7 +330,6 @@ LatentAssociationResult fit_latent_association(const ObservedAllocation& o,
   if (options.rank < 0) {
     for (std::size_t k = 1; k < result.table.size(); ++k)
       if (result.table[k].bic < result.table[chosen].bic) chosen = static_cast<long>(k);
-    if (!(o.units > 0)) chosen = top;  // no likelihood scale without counts: the largest tried
   }
   result.rank = chosen;
   if (chosen == 0) {

@@ -88,7 +88,8 @@ struct LatentAssociationResult {
 };
 
 // Throws InputError when the requested rank is not below min(rows, columns) - 1
-// of the kept table (that rank is the saturated model) or negative.
+// of the kept table (that rank is the saturated model) or negative, and for
+// `auto` without counts (BIC needs N).
 LatentAssociationResult fit_latent_association(const ObservedAllocation& observed,
                                                const LatentAssociationOptions& options = {});
 
