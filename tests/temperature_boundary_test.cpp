@@ -71,7 +71,7 @@ bool covers(const TemperatureResult& r, double epsilon) {
 }  // namespace
 
 TEST_CASE(
-    "at the optimum the bound is [0, eps_up] with eps_up where the likelihood ratio is "
+    "at the optimum the bound runs from 0 to eps_up, where the likelihood ratio is "
     "chi-square's point") {
   const TransportProblem problem = scenario(GainsKind::trait_distance, 5, 5, 3);
   const ExactResult exact = solve_exact(problem);
@@ -97,7 +97,7 @@ TEST_CASE(
 }
 
 TEST_CASE(
-    "without signal the bound is [eps_lo, infinity) with eps_lo where the likelihood ratio is "
+    "without signal the bound runs from eps_lo to infinity, where the likelihood ratio is "
     "chi-square's point") {
   const TransportProblem problem = scenario(GainsKind::random, 5, 6, 4);
   Matrix flat(5, 6);
