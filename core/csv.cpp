@@ -176,10 +176,25 @@ bool numbered_columns(const std::vector<Field>& header) {
   return true;
 }
 
+// Whether every non-empty field is quoted (as R quotes its row and column names).
+template <class Fields, class Get>
+bool all_quoted(const Fields& fields, Get get) {
+  for (const auto& f : fields) {
+    if (!get(f).text.empty() && !get(f).quoted) return false;
+  }
+  return true;
+}
+
 bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) const {
-  const bool text_when_quoted = !quotes_numbers_;
+  const bool text_when_quoted =
+      !quotes_numbers_ && all_quoted(header, [](const Field& f) -> const Field& { return f; });
   double value;
-  if (header.size() == 1) return kind_of(header[0], text_when_quoted, value) == Kind::text;
+  if (header.size() == 1) {
+    const Kind kind = kind_of(header[0], text_when_quoted, value);
+    const bool separated = !header[0].quoted && header[0].text.find_first_of(";\t") != std::string_view::npos;
+    if (kind == Kind::text && separated) refuse_text(header[0], line, 0, "");
+    return kind == Kind::text;
+  }
   std::size_t numbers = 0, texts = 0, first_number = 0, first_text = 0;
   for (std::size_t k = 1; k < header.size(); ++k) {
     const Kind kind = kind_of(header[k], text_when_quoted, value);
@@ -233,7 +248,7 @@ const char* MatrixReader::read_data_row(const char* p, long line, std::size_t ro
   p = csv_text::scan_field(p, field, last, problem);
   if (problem != FieldProblem::none) refuse_problem(problem, line, 0);
   FirstCell first{field, line, Kind::missing, 0.0};
-  first.kind = kind_of(field, !quotes_numbers_, first.value);
+  first.kind = kind_of(field, false, first.value);  // by content; quotes weighed once all are read
   first_cells_.push_back(first);
 
   const std::size_t width = width_ ? width_ : values_.size();  // unknown on the first row
@@ -295,12 +310,17 @@ bool MatrixReader::first_column_holds_labels() const {
       return true;  // no corner cell: the header names the data columns
     if (kind_of(header_[0], !quotes_numbers_, value) == Kind::missing) return true;  // empty corner
   }
+  const bool text_when_quoted =
+      !quotes_numbers_ &&
+      all_quoted(first_cells_, [](const FirstCell& c) -> const Field& { return c.field; });
   std::size_t numbers = 0, texts = 0;
   const FirstCell* first_number = nullptr;
   const FirstCell* first_text = nullptr;
   for (const FirstCell& cell : first_cells_) {
-    if (cell.kind == Kind::finite && numbers++ == 0) first_number = &cell;
-    if (cell.kind == Kind::text && texts++ == 0) first_text = &cell;
+    const Kind kind =
+        text_when_quoted && cell.field.quoted && !cell.field.text.empty() ? Kind::text : cell.kind;
+    if (kind == Kind::finite && numbers++ == 0) first_number = &cell;
+    if (kind == Kind::text && texts++ == 0) first_text = &cell;
   }
   if (numbers == 0) return texts > 0;
   if (texts == 0) return false;
