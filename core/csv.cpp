@@ -191,7 +191,8 @@ bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) con
   double value;
   if (header.size() == 1) {
     const Kind kind = kind_of(header[0], text_when_quoted, value);
-    const bool separated = !header[0].quoted && header[0].text.find_first_of(";\t") != std::string_view::npos;
+    const bool separated =
+        !header[0].quoted && header[0].text.find_first_of(";\t") != std::string_view::npos;
     if (kind == Kind::text && separated) refuse_text(header[0], line, 0, "");
     return kind == Kind::text;
   }

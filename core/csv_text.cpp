@@ -157,7 +157,7 @@ bool label_needs_quotes(std::string_view label) {
   double value;
   return label.empty() || label == "NA" || label.front() == '#' || label.front() == ' ' ||
          label.front() == '\t' || label.back() == ' ' || label.back() == '\t' ||
-         label.find_first_of(",\"\n\r") != std::string_view::npos || parse_number(label, value);
+         label.find_first_of(",\";\n\r\t") != std::string_view::npos || parse_number(label, value);
 }
 
 std::string Field::value() const {

@@ -5,6 +5,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
+#include "allocsim/core/error.hpp"
 #include "csv_text.hpp"
 
 namespace allocsim {
@@ -37,8 +38,8 @@ class BlockWriter {
     text.copy(block_.data() + used_, text.size());
     used_ += text.size();
   }
-  void put_label(const std::string& label) {
-    if (!csv_text::label_needs_quotes(label)) return put_text(label);
+  void put_label(const std::string& label, bool quoted) {
+    if (!quoted) return put_text(label);
     put('"');
     for (const char ch : label) {
       if (ch == '"') put('"');
@@ -64,6 +65,20 @@ class BlockWriter {
   std::size_t used_ = 0;
 };
 
+// Labels are quoted all together or not at all: the reader takes quoted
+// cells as labels only when every label of the row or column is quoted.
+bool quote_labels(const std::vector<std::string>& labels) {
+  for (const std::string& label : labels) {
+    if (label.find_first_of("\n\r") != std::string::npos) {
+      throw InputError("label '" + label + "'", "holds a line end, which a CSV cell cannot hold");
+    }
+  }
+  for (const std::string& label : labels) {
+    if (csv_text::label_needs_quotes(label)) return true;
+  }
+  return false;
+}
+
 }  // namespace
 
 std::string format_number(double value) {
@@ -75,19 +90,21 @@ std::string format_number(double value) {
 void write_matrix_csv(std::ostream& out, const Matrix& values,
                       const std::vector<std::string>& row_labels,
                       const std::vector<std::string>& column_labels) {
+  const bool quote_rows = quote_labels(row_labels);
+  const bool quote_columns = quote_labels(column_labels);
   BlockWriter writer(out);
   const bool with_rows = !row_labels.empty();
   if (!column_labels.empty()) {
     if (with_rows) writer.put(',');
     for (std::size_t j = 0; j < column_labels.size(); ++j) {
       if (j) writer.put(',');
-      writer.put_label(column_labels[j]);
+      writer.put_label(column_labels[j], quote_columns);
     }
     writer.put('\n');
   }
   for (Eigen::Index i = 0; i < values.rows(); ++i) {
     if (with_rows) {
-      writer.put_label(row_labels[static_cast<std::size_t>(i)]);
+      writer.put_label(row_labels[static_cast<std::size_t>(i)], quote_rows);
       writer.put(',');
     }
     const double* row = values.row(i).data();

@@ -104,8 +104,8 @@ TEST_CASE("a table written by R's write.csv reads as the intended labelled table
   CHECK(m.column_labels == Labels{"a", "b"});
   CHECK(m.values(1, 1) == 6);
   // Numeric column names (years) are quoted by R and stay labels.
-  const auto years = read_matrix_csv(
-      write_temp("r_years", "\"\",\"1990\",\"1991\"\n\"AGO\",1.5,2\n\"NA\",0,7\n"));
+  const auto years =
+      read_matrix_csv(write_temp("r_years", "\"\",\"1990\",\"1991\"\n\"AGO\",1.5,2\n\"NA\",0,7\n"));
   CHECK(years.column_labels == Labels{"1990", "1991"});
   CHECK(years.row_labels == Labels{"AGO", "NA"});  // NA is Namibia here, a label
 }
@@ -142,13 +142,15 @@ TEST_CASE("a typo in the first row is an error naming the cell, not a label row"
 TEST_CASE("a typo in the first column is an error naming the cell, not a label column") {
   const std::string message = error_of(write_temp("typo_column", "1,2\n1O,3\n5,6\n"));
   INFO(message);
-  CHECK(message.rfind("csv_test_typo_column.csv:2: column 1 holds '1O', which is not a number", 0) == 0);
+  CHECK(message.rfind("csv_test_typo_column.csv:2: column 1 holds '1O', which is not a number",
+                      0) == 0);
   // With a label row whose corner is named, the same.
   CHECK_THAT(error_of(write_temp("typo_column_header", "id,a\n1,2\n1O,3\n5,6\n")),
              Catch::StartsWith("csv_test_typo_column_header.csv:3: column 1 holds '1O'"));
   // A bare number among row labels is named (quoting it makes it a label).
-  CHECK_THAT(error_of(write_temp("number_in_row_labels", "x,1\ny,2\n3,4\nz,5\n")),
-             Catch::StartsWith("csv_test_number_in_row_labels.csv:3: column 1 holds '3', a number"));
+  CHECK_THAT(
+      error_of(write_temp("number_in_row_labels", "x,1\ny,2\n3,4\nz,5\n")),
+      Catch::StartsWith("csv_test_number_in_row_labels.csv:3: column 1 holds '3', a number"));
   const auto quoted =
       read_matrix_csv(write_temp("quoted_row_label", "\"x\",1\n\"y\",2\n\"3\",4\n"));
   CHECK(quoted.row_labels == Labels{"x", "y", "3"});
@@ -177,12 +179,14 @@ TEST_CASE("words spelling NaN are labels among labels and refused among numbers"
   CHECK_THAT(error_of(write_temp("overflow", "1,1e400\n")), Catch::Contains("finite"));
   CHECK(read_matrix_csv(write_temp("underflow", "1,1e-400\n")).values(0, 1) == 0);
   CHECK(read_matrix_csv(write_temp("plus", "+1,-2\n")).values(0, 0) == 1);
-  CHECK_THAT(error_of(write_temp("hex", "1,2\n3,0x10\n")), Catch::Contains("'0x10', which is not a number"));
+  CHECK_THAT(error_of(write_temp("hex", "1,2\n3,0x10\n")),
+             Catch::Contains("'0x10', which is not a number"));
 }
 
 TEST_CASE("empty and NA cells are errors naming the cell unless read as 0") {
   CHECK_THAT(error_of(write_temp("na", "1,2,3\n4,NA,6\n")),
-             Catch::StartsWith("csv_test_na.csv:2: column 2 holds NA") && Catch::Contains("--missing zero"));
+             Catch::StartsWith("csv_test_na.csv:2: column 2 holds NA") &&
+                 Catch::Contains("--missing zero"));
   CHECK_THAT(error_of(write_temp("empty_cell", "1,2,3\n4,,6\n")),
              Catch::StartsWith("csv_test_empty_cell.csv:2: column 2 is empty"));
   CHECK_THAT(error_of(write_temp("na_first", "a,b\nNA,1\n2,3\n")),
@@ -201,51 +205,65 @@ TEST_CASE("empty and NA cells are errors naming the cell unless read as 0") {
 TEST_CASE("a file separated by semicolons or tabs is refused, naming the separator") {
   CHECK_THAT(error_of(write_temp("semicolons", "1;2;3\n4;5;6\n")),
              Catch::StartsWith("csv_test_semicolons.csv:1") && Catch::Contains("semicolons (';')"));
-  CHECK_THAT(error_of(write_temp("semicolons_labels", "name;a;b\nx;1;2\n")),
-             Catch::StartsWith("csv_test_semicolons_labels.csv:1") && Catch::Contains("semicolons"));
+  CHECK_THAT(
+      error_of(write_temp("semicolons_labels", "name;a;b\nx;1;2\n")),
+      Catch::StartsWith("csv_test_semicolons_labels.csv:1") && Catch::Contains("semicolons"));
   CHECK_THAT(error_of(write_temp("decimal_commas", "1,5;2,5\n3,5;4,5\n")),
              Catch::StartsWith("csv_test_decimal_commas.csv:1: column 2 holds '5;2'") &&
                  Catch::Contains("semicolons"));
   CHECK_THAT(error_of(write_temp("tabs", "1\t2\t3\n4\t5\t6\n")),
              Catch::StartsWith("csv_test_tabs.csv:1") && Catch::Contains("separated by tabs"));
-  CHECK(read_matrix_csv(write_temp("blanks", "1,\t2 \r\n 3 ,4\n")).values(1, 0) == 3);  // padding only
+  CHECK(read_matrix_csv(write_temp("blanks", "1,\t2 \r\n 3 ,4\n")).values(1, 0) ==
+        3);  // padding only
 }
 
 TEST_CASE("labels duplicated within a file are errors naming the label") {
-  CHECK_THAT(error_of(write_temp("dup_rows", ",a,b\nx,1,2\ny,3,4\nx,5,6\n")),
-             Catch::StartsWith("csv_test_dup_rows.csv:4: row label 'x' appears again (first on line 2)"));
-  CHECK_THAT(error_of(write_temp("dup_columns", ",a,b,a\nx,1,2,3\n")),
-             Catch::StartsWith("csv_test_dup_columns.csv:1: column label 'a' appears twice (column 2 and column 4)"));
+  CHECK_THAT(
+      error_of(write_temp("dup_rows", ",a,b\nx,1,2\ny,3,4\nx,5,6\n")),
+      Catch::StartsWith("csv_test_dup_rows.csv:4: row label 'x' appears again (first on line 2)"));
+  CHECK_THAT(
+      error_of(write_temp("dup_columns", ",a,b,a\nx,1,2,3\n")),
+      Catch::StartsWith(
+          "csv_test_dup_columns.csv:1: column label 'a' appears twice (column 2 and column 4)"));
   CHECK_THAT(error_of(write_temp("empty_label", ",a,,b\nx,1,2,3\n")),
              Catch::StartsWith("csv_test_empty_label.csv:1: column 3 of the label row is empty"));
 }
 
 TEST_CASE("a directory, a NUL byte (/dev/zero) and UTF-16 text are refused with a clear message") {
   std::filesystem::create_directories("csv_test_folder.csv");
-  CHECK(error_of("csv_test_folder.csv") == "csv_test_folder.csv: is a directory; give the path of a CSV file");
+  CHECK(error_of("csv_test_folder.csv") ==
+        "csv_test_folder.csv: is a directory; give the path of a CSV file");
   // /dev/zero never ends: it is refused at its first byte, not read to the memory limit.
   if (std::filesystem::exists("/dev/zero")) {
     CHECK_THAT(error_of("/dev/zero"), Catch::StartsWith("/dev/zero:1: holds a NUL byte"));
   }
   CHECK_THAT(error_of(write_temp("binary", std::string("1,2\n3,\0\n", 8))),
              Catch::StartsWith("csv_test_binary.csv:2: holds a NUL byte"));
-  CHECK_THAT(error_of(write_temp("utf16", std::string("\xFF\xFE" "1\0,\0" "2\0", 8))),
+  CHECK_THAT(error_of(write_temp("utf16", std::string("\xFF\xFE"
+                                                      "1\0,\0"
+                                                      "2\0",
+                                                      8))),
              Catch::Contains("UTF-16"));
-  CHECK(read_matrix_csv(write_temp("bom", "\xEF\xBB\xBF" "a,b\n1,2\n")).column_labels == Labels{"a", "b"});
+  CHECK(read_matrix_csv(write_temp("bom",
+                                   "\xEF\xBB\xBF"
+                                   "a,b\n1,2\n"))
+            .column_labels == Labels{"a", "b"});
 }
 
 TEST_CASE("a quote left open or text after a closing quote is an error naming the cell") {
   CHECK_THAT(error_of(write_temp("open_quote", "a,b\n\"x,1\n")),
              Catch::StartsWith("csv_test_open_quote.csv:2: column 1 opens a quote"));
-  CHECK_THAT(error_of(write_temp("after_quote", "a,b\n\"x\"y,1\n")),
-             Catch::StartsWith("csv_test_after_quote.csv:2: column 1 has text after its closing quote"));
+  CHECK_THAT(
+      error_of(write_temp("after_quote", "a,b\n\"x\"y,1\n")),
+      Catch::StartsWith("csv_test_after_quote.csv:2: column 1 has text after its closing quote"));
   CHECK(split_csv_record("a,\"b,\"\"c\"\"\", d") == Labels{"a", "b,\"c\"", "d"});
   CHECK_THROWS_AS(split_csv_record("a,\"b"), InputError);
 }
 
 TEST_CASE("a row with too many fields is ragged") {
-  CHECK_THAT(error_of(write_temp("too_many", "1,2\n3,4,5\n")),
-             Catch::StartsWith("csv_test_too_many.csv:2: has 3 fields but the first data row has 2"));
+  CHECK_THAT(
+      error_of(write_temp("too_many", "1,2\n3,4,5\n")),
+      Catch::StartsWith("csv_test_too_many.csv:2: has 3 fields but the first data row has 2"));
 }
 
 TEST_CASE("labels that spell numbers, NA or hold commas are quoted on writing and read back") {

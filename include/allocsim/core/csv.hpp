@@ -109,10 +109,12 @@ CsvTable read_csv_table(const std::string& path);
 
 // Writes atomically (temporary file, then rename): the file either appears
 // complete or not at all. Labels are written when given (row labels under an
-// empty corner cell); a label is quoted when it would not read back as the
-// same label otherwise (it spells a number or NA, is empty, starts with '#',
-// has blanks at its ends or holds a comma, quote or line end). Numbers use
-// the shortest text that reads back to the same double (std::to_chars).
+// empty corner cell). The labels of a row or column are all quoted when one
+// of them would not read back as the same label otherwise (it spells a
+// number or NA, is empty, starts with '#', has blanks at its ends or holds a
+// comma, quote, semicolon or tab); a label holding a line end is an
+// InputError. Numbers use the shortest text that reads back to the same
+// double (std::to_chars).
 void write_matrix_csv(const std::string& path, const Matrix& values,
                       const std::vector<std::string>& row_labels = {},
                       const std::vector<std::string>& column_labels = {});
