@@ -75,7 +75,9 @@ class MatrixReader {
 
   std::vector<Field> split_record(const char*& p, long line) const;
   void decide_quoting(const char* second, long line);
-  bool is_label_row(const std::vector<Field>& header, long line) const;
+  enum class FirstRow { data, labels, numeric_labels };
+  FirstRow first_row_kind(const std::vector<Field>& header, long line) const;
+  [[noreturn]] void refuse_numeric_first_row() const;
   void read_data_rows();
   const char* read_data_row(const char* p, long line, std::size_t row);
   void store_slow(const Field& field, long line, std::size_t column, double& slot);
@@ -92,6 +94,7 @@ class MatrixReader {
 
   bool quotes_numbers_ = false;  // the file quotes its numbers: quotes carry no meaning
   bool label_row_ = false;
+  bool numeric_label_row_ = false;  // empty corner and numbers: labels only above a label column
   std::vector<Field> header_;
   long header_line_ = 0;
 
@@ -185,7 +188,10 @@ bool all_quoted(const Fields& fields, Get get) {
   return true;
 }
 
-bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) const {
+// The first row: labels, data, or (an empty first cell before numbers)
+// labels only when the first column turns out to hold labels.
+MatrixReader::FirstRow MatrixReader::first_row_kind(const std::vector<Field>& header,
+                                                    long line) const {
   const bool text_when_quoted =
       !quotes_numbers_ && all_quoted(header, [](const Field& f) -> const Field& { return f; });
   double value;
@@ -194,7 +200,7 @@ bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) con
     const bool separated =
         !header[0].quoted && header[0].text.find_first_of(";\t") != std::string_view::npos;
     if (kind == Kind::text && separated) refuse_text(header[0], line, 0, "");
-    return kind == Kind::text;
+    return kind == Kind::text ? FirstRow::labels : FirstRow::data;
   }
   std::size_t numbers = 0, texts = 0, first_number = 0, first_text = 0;
   for (std::size_t k = 1; k < header.size(); ++k) {
@@ -202,11 +208,12 @@ bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) con
     if (kind == Kind::finite && numbers++ == 0) first_number = k;
     if (kind == Kind::text && texts++ == 0) first_text = k;
   }
-  if (numbers == 0) return texts > 0;
+  if (numbers == 0) return texts > 0 ? FirstRow::labels : FirstRow::data;
   if (texts == 0) {
-    double corner;
-    return kind_of(header[0], text_when_quoted, corner) == Kind::missing &&
-           numbered_columns(header);
+    if (kind_of(header[0], text_when_quoted, value) != Kind::missing ||
+        numbers + 1 != header.size())
+      return FirstRow::data;
+    return numbered_columns(header) ? FirstRow::labels : FirstRow::numeric_labels;
   }
   if (numbers >= texts) {
     refuse_text(header[first_text], line, first_text,
@@ -217,6 +224,13 @@ bool MatrixReader::is_label_row(const std::vector<Field>& header, long line) con
                    column_name(first_number) + " holds " + shown(header[first_number]) +
                        ", a number, while the other cells of the first row are labels: a row of "
                        "labels holds no numbers (quote a label that spells a number)");
+}
+
+void MatrixReader::refuse_numeric_first_row() const {
+  throw InputError(where(header_line_),
+                   "column 1 is empty while the rest of the first row are numbers, and the first "
+                   "column below holds no labels: a missing value, or column labels that spell "
+                   "numbers? Fill the cell, or quote the labels (\"2019\")");
 }
 
 void MatrixReader::store_slow(const Field& field, long line, std::size_t column, double& slot) {
@@ -294,9 +308,10 @@ const char* MatrixReader::read_data_row(const char* p, long line, std::size_t ro
 
 void MatrixReader::read_data_rows() {
   while (csv_text::skip_to_record(p_, end_, line_)) {
-    if (rows_ > 0 && (rows_ + 1) * width_ > values_.size()) {
+    // Every cell ends at its own comma or line end, so the cells stored so
+    // far never outnumber count_fields' bound (a row's start included).
+    if (rows_ * width_ > values_.size())
       throw std::logic_error("CSV reader: more cells than separators");
-    }
     p_ = read_data_row(p_, line_, rows_);
     ++rows_;
     ++line_;
@@ -304,8 +319,11 @@ void MatrixReader::read_data_rows() {
 }
 
 bool MatrixReader::first_column_holds_labels() const {
-  if (width_ == 1) return false;
-  if (label_row_) {
+  if (width_ == 1) {
+    if (numeric_label_row_) refuse_numeric_first_row();
+    return false;
+  }
+  if (label_row_ && !numeric_label_row_) {
     double value;
     if (header_.size() + 1 == width_)
       return true;  // no corner cell: the header names the data columns
@@ -323,6 +341,7 @@ bool MatrixReader::first_column_holds_labels() const {
     if (kind == Kind::finite && numbers++ == 0) first_number = &cell;
     if (kind == Kind::text && texts++ == 0) first_text = &cell;
   }
+  if (numeric_label_row_ && (numbers > 0 || texts == 0)) refuse_numeric_first_row();
   if (numbers == 0) return texts > 0;
   if (texts == 0) return false;
   if (numbers >= texts) {
@@ -439,12 +458,15 @@ LabeledMatrix MatrixReader::read() {
   const char* after_first = first;
   header_ = split_record(after_first, first_line);
   decide_quoting(after_first, first_line + 1);
-  label_row_ = is_label_row(header_, first_line);
+  const FirstRow kind = first_row_kind(header_, first_line);
+  label_row_ = kind != FirstRow::data;
+  numeric_label_row_ = kind == FirstRow::numeric_labels;
   if (label_row_) {
     header_line_ = first_line;
     p_ = after_first;
     line_ = first_line + 1;
     if (!csv_text::skip_to_record(p_, end_, line_)) {
+      if (numeric_label_row_) refuse_numeric_first_row();
       throw InputError(name_, "holds a label row but no data rows");
     }
   } else {

@@ -66,6 +66,16 @@ void refuse_utf16(const std::string& text, const std::string& name) {
   }
 }
 
+// A byte-order mark anywhere but at the start (two files pasted together,
+// a BOM after a blank line) would become part of a label or a number.
+void refuse_inner_bom(const std::string& text, const std::string& name) {
+  const std::size_t at = text.find("\xEF\xBB\xBF");
+  if (at == std::string::npos) return;
+  throw InputError(location(name, line_of_offset(text, at)),
+                   "holds a byte-order mark (U+FEFF) inside the file; only its very start may "
+                   "carry one (were two files pasted together?)");
+}
+
 void require_buffer_memory(double bytes, const std::string& path) {
   require_memory(bytes, "reading a file of " + format_bytes(bytes), path,
                  "split the file or use a machine with more memory");
@@ -129,6 +139,7 @@ std::string prepare(std::string text, const std::string& name) {
   refuse_utf16(text, name);
   refuse_nul(text, 0, name);
   if (text.compare(0, 3, "\xEF\xBB\xBF") == 0) text.erase(0, 3);  // written by spreadsheet programs
+  refuse_inner_bom(text, name);
   if (text.empty() || text.back() != '\n') text.push_back('\n');
   return text;
 }

@@ -69,7 +69,7 @@ class BlockWriter {
 // cells as labels only when every label of the row or column is quoted.
 bool quote_labels(const std::vector<std::string>& labels) {
   for (const std::string& label : labels) {
-    if (label.find_first_of("\n\r") != std::string::npos) {
+    if (label.find('\n') != std::string::npos) {
       throw InputError("label '" + label + "'", "holds a line end, which a CSV cell cannot hold");
     }
   }

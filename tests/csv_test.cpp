@@ -123,6 +123,22 @@ TEST_CASE("a table written by pandas (unnamed index, numbered columns) reads as 
   CHECK(series.labels == Labels{"0", "1"});
 }
 
+TEST_CASE("an empty first cell before numbers: labels above a label column, refused otherwise") {
+  // DataFrame(P, index=names, columns=years).to_csv(): the years are bare numbers.
+  const auto m = read_matrix_csv(write_temp("pandas_years", ",2019,2020\nx,1,2\ny,3,4\n"));
+  CHECK(m.column_labels == Labels{"2019", "2020"});
+  CHECK(m.row_labels == Labels{"x", "y"});
+  // With numbers below, a missing value and numeric labels cannot be told apart: refused,
+  // even when missing cells read as 0.
+  CsvReadOptions zero;
+  zero.missing_as_zero = true;
+  for (const auto& options : {CsvReadOptions{}, zero}) {
+    CHECK_THAT(
+        error_of(write_temp("empty_corner_numbers", ",2019,2020\n1,5,6\n"), options),
+        Catch::StartsWith("csv_test_empty_corner_numbers.csv:1: column 1 is empty while the rest"));
+  }
+}
+
 TEST_CASE("a header one field shorter than the rows labels the first column") {
   const auto m = read_matrix_csv(write_temp("short_header", "a,b\nx,1,2\ny,3,4\n"));
   CHECK(m.column_labels == Labels{"a", "b"});
@@ -244,6 +260,10 @@ TEST_CASE("a directory, a NUL byte (/dev/zero) and UTF-16 text are refused with 
                                                       "2\0",
                                                       8))),
              Catch::Contains("UTF-16"));
+  CHECK_THAT(error_of(write_temp("inner_bom",
+                                 "1,2\n\xEF\xBB\xBF"
+                                 "3,4\n")),
+             Catch::StartsWith("csv_test_inner_bom.csv:2: holds a byte-order mark"));
   CHECK(read_matrix_csv(write_temp("bom",
                                    "\xEF\xBB\xBF"
                                    "a,b\n1,2\n"))
