@@ -1,6 +1,6 @@
 // The words of an enum, typed once: a table of (value, word) pairs per enum
 // gives its to_string, its ..._from_string with the one message "'x' is not
-// one of a, b, c" (an InputError naming where), and the word list that
+// one of a, b or c" (an InputError naming where), and the word list that
 // --help and the experiment-key table show.
 //
 //   constexpr EnumWord<Colour> kColourWords[] = {{Colour::red, "red"}, {Colour::blue, "blue"}};
@@ -44,12 +44,19 @@ inline std::string join_words(const std::vector<std::string>& words, const char*
   return text;
 }
 
-// The value whose word is `text`; InputError(where, "'text' is not one of ...") otherwise.
+// "a, b or c", for messages.
+inline std::string alternatives(const std::vector<std::string>& words) {
+  if (words.size() < 2) return join_words(words);
+  const std::vector<std::string> head(words.begin(), words.end() - 1);
+  return join_words(head) + " or " + words.back();
+}
+
+// The value whose word is `text`; InputError(where, "'text' is not one of a, b or c") otherwise.
 template <class Enum, std::size_t N>
 Enum value_of(const std::string& text, const EnumWord<Enum> (&words)[N], const std::string& where) {
   for (const auto& entry : words)
     if (text == entry.word) return entry.value;
-  throw InputError(where, "'" + text + "' is not one of " + join_words(words_of(words)));
+  throw InputError(where, "'" + text + "' is not one of " + alternatives(words_of(words)));
 }
 
 }  // namespace allocsim
