@@ -26,6 +26,7 @@ allocsim_layer(analysis
     analysis/marginal_newton.cpp
     analysis/gains_fit.cpp
     analysis/allocation_report.cpp
+    analysis/thread_team.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
