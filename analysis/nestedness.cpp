@@ -187,11 +187,40 @@ class ColumnRankCounts {
   std::vector<int> inserted_;
 };
 
+// Whether every entry is a whole number in [0, 2^16] (counts): then the
+// values themselves serve as ranks, with no sorting.
+bool small_whole_numbers(const Matrix& w) {
+  constexpr double kLargest = 65536;
+  const double* x = w.data();
+  bool whole = true;
+  for (Index k = 0; k < w.size(); ++k)
+    whole &= x[k] >= 0 && x[k] <= kLargest && x[k] == std::floor(x[k]);
+  return whole;
+}
+
+// Ranks of whole-number weights: the values themselves (larger value, larger
+// rank; ties share); `distinct` gets the largest value of each column.
+std::vector<int> whole_number_ranks(const Matrix& w, std::vector<int>& distinct) {
+  const Index n = w.rows(), m = w.cols();
+  std::vector<int> rank(static_cast<std::size_t>(n * m));
+  distinct.assign(static_cast<std::size_t>(m), 0);
+  for (Index i = 0; i < n; ++i) {
+    const double* row = w.row(i).data();
+    int* out = rank.data() + i * m;
+    for (Index l = 0; l < m; ++l) {
+      out[l] = static_cast<int>(row[l]);
+      distinct[l] = std::max(distinct[l], out[l]);
+    }
+  }
+  return rank;
+}
+
 // Rank (from 1, equal values share one) of each positive cell among the
 // positive cells of its column; 0 for the other cells. Also the number of
 // distinct positive values per column.
 std::vector<int> column_ranks(const Matrix& w, std::vector<int>& distinct) {
   const Index n = w.rows(), m = w.cols();
+  if (small_whole_numbers(w)) return whole_number_ranks(w, distinct);
   std::vector<std::vector<double>> values(static_cast<std::size_t>(m));
   for (Index i = 0; i < n; ++i)
     for (Index l = 0; l < m; ++l)
