@@ -30,6 +30,15 @@ std::vector<double> log_factorials(long size) {
   return table;
 }
 
+}  // namespace
+
+// sample_table_with_margins with log(k!) for k = 0 .. total given (the
+// sampler keeps it: it costs a log per unit of the total).
+Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
+                       const std::vector<double>& log_factorial, std::mt19937_64& rng);
+
+namespace {
+
 // Inversion sampling of Hypergeometric(population, successes, draws),
 // summing probabilities outward from the mode (as AS 159 does); the mode's
 // probability comes from `log_factorial` (covering 0 .. population).
@@ -286,14 +295,19 @@ long sample_hypergeometric(long population, long successes, long draws, std::mt1
 
 Matrix sample_table_with_margins(const std::vector<long>& row_totals,
                                  const std::vector<long>& column_totals, std::mt19937_64& rng) {
+  return patefield_table(
+      row_totals, column_totals,
+      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng);
+}
+
+Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
+                       const std::vector<double>& log_factorial, std::mt19937_64& rng) {
   const std::size_t n = row_totals.size(), m = column_totals.size();
   assert(std::accumulate(row_totals.begin(), row_totals.end(), 0L) ==
          std::accumulate(column_totals.begin(), column_totals.end(), 0L));
   Matrix table = Matrix::Zero(static_cast<Index>(n), static_cast<Index>(m));
   if (n == 0 || m == 0) return table;
   std::vector<long> column_left = column_totals;
-  const std::vector<double> log_factorial =
-      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1);
   for (std::size_t i = 0; i + 1 < n; ++i) {
     long row_left = row_totals[i];
     long pool = std::accumulate(column_left.begin(), column_left.end(), 0L);
@@ -516,6 +530,8 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
           row_counts_.push_back(std::lround(row_totals_(i)));
         for (Index j = 0; j < observed.cols(); ++j)
           column_counts_.push_back(std::lround(column_totals_(j)));
+        log_factorial_ = log_factorials(
+            std::accumulate(column_counts_.begin(), column_counts_.end(), 0L) + 1);
       }
       break;
     }
@@ -541,7 +557,7 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
 Matrix NullSampler::next() {
   switch (options_.model) {
     case NullModel::fixed_margins: {
-      if (counts_) return sample_table_with_margins(row_counts_, column_counts_, rng_);
+      if (counts_) return patefield_table(row_counts_, column_counts_, log_factorial_, rng_);
       const double total = reference_.sum();
       if (!(total > 0)) return reference_;
       Matrix table =

@@ -157,6 +157,7 @@ class NullSampler {
   std::mt19937_64 rng_;
   bool counts_ = false;
   std::vector<long> row_counts_, column_counts_;
+  std::vector<double> log_factorial_;  // log(k!) up to the total count
   Vector row_totals_, column_totals_;
   BicmFit bicm_fit_;
   std::optional<CurveballChain> chain_;  // set for curveball
