@@ -32,6 +32,7 @@ allocsim_layer(analysis
     analysis/latent_association.cpp
     analysis/gains_reconstruction.cpp
     analysis/allocation_report.cpp
+    analysis/thread_team.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
