@@ -53,7 +53,10 @@ allocsim_layer(results
 allocsim_layer(experiments
   SOURCES
     experiments/analysis_settings.cpp
+    experiments/benchmark_draws.cpp
+    experiments/benchmark_score.cpp
     experiments/benchmark_set.cpp
+    experiments/benchmark_sources.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
     experiments/simulation.cpp
