@@ -16,7 +16,8 @@ bool ends_with(const std::string& text, const std::string& end) {
 
 void write_csv(const std::string& path, const CsvTable& table) {
   AtomicFile file(path);
-  for (std::size_t c = 0; c < table.header.size(); ++c) file.stream() << (c ? "," : "") << table.header[c];
+  for (std::size_t c = 0; c < table.header.size(); ++c)
+    file.stream() << (c ? "," : "") << table.header[c];
   file.stream() << "\n";
   for (const auto& row : table.rows) {
     for (std::size_t c = 0; c < row.size(); ++c) file.stream() << (c ? "," : "") << row[c];
@@ -29,18 +30,20 @@ void write_csv(const std::string& path, const CsvTable& table) {
 
 int score_command(const Arguments& args) {
   po::options_description options("score options");
-  options.add_options()
-      ("truth", po::value<std::string>()->required(), "the set's truth.csv")
-      ("answers", po::value<std::string>()->required(),
-       "CSV with columns case, epsilon (empty: declined; inf allowed) and optionally ci_low, ci_high")
-      ("out", po::value<std::vector<std::string>>()->composing(),
-       "write the scores: F.csv (one row per case), F.h5 (a results file that `allocsim plot` draws); "
-       "may be given twice")
-      ("groups-csv", po::value<std::string>(), "write the table of groups (one row per group) to this CSV file")
-      ("json", "print one JSON object on stdout");
+  options.add_options()("truth", po::value<std::string>()->required(), "the set's truth.csv")(
+      "answers", po::value<std::string>()->required(),
+      "CSV with columns case, epsilon (empty: declined; inf allowed) and optionally ci_low, "
+      "ci_high")("out", po::value<std::vector<std::string>>()->composing(),
+                 "write the scores: F.csv (one row per case), F.h5 (a results file that `allocsim "
+                 "plot` draws); "
+                 "may be given twice")(
+      "groups-csv", po::value<std::string>(),
+      "write the table of groups (one row per group) to this CSV file")(
+      "json", "print one JSON object on stdout");
   po::variables_map vm;
-  if (!parse_or_help(args, options, {}, vm, "score",
-                     "--truth truth.csv --answers answers.csv [--out scores.csv] [--out scores.h5] [--json]"))
+  if (!parse_or_help(
+          args, options, {}, vm, "score",
+          "--truth truth.csv --answers answers.csv [--out scores.csv] [--out scores.h5] [--json]"))
     return kExitOk;
   std::vector<std::string> outputs;
   if (vm.count("out")) outputs = vm["out"].as<std::vector<std::string>>();
@@ -52,8 +55,10 @@ int score_command(const Arguments& args) {
   const CsvTable answers = read_csv_table(vm["answers"].as<std::string>());
   const ScoreReport report = score_answers(truth, answers);
   for (const auto& out : outputs) {
-    if (ends_with(out, ".csv")) write_csv(out, report.per_case_table());
-    else throw InputError("--out", "scores.h5 is not written yet");
+    if (ends_with(out, ".csv"))
+      write_csv(out, report.per_case_table());
+    else
+      throw InputError("--out", "scores.h5 is not written yet");
   }
   if (vm.count("groups-csv")) write_csv(vm["groups-csv"].as<std::string>(), report.group_table());
   if (vm.count("json")) {

@@ -11,7 +11,8 @@ namespace allocsim::cli {
 namespace {
 
 void report_progress(long done, long total) {
-  if (done % 50 == 0 || done == total) std::cerr << "\rsynth: " << done << " of " << total << " cases" << std::flush;
+  if (done % 50 == 0 || done == total)
+    std::cerr << "\rsynth: " << done << " of " << total << " cases" << std::flush;
   if (done == total) std::cerr << "\n";
 }
 
@@ -28,30 +29,36 @@ std::string usage() {
 
 int synth_command(const Arguments& args) {
   po::options_description options("synth options");
-  options.add_options()
-      ("out-dir", po::value<std::string>()->required(), "new (or empty) folder for the set")
-      ("truth-dir", po::value<std::string>(), "folder for truth.csv, apart from the inputs (default: --out-dir)")
-      ("families", po::value<std::string>()->default_value("trait-distance, rank-product, random"),
-       "gains families, a list (rank-product, trait-distance, random, features)")
-      ("source", po::value<std::string>()->default_value("model"),
-       "how allocations are made, a list: model (multinomial from the entropic coupling), price, "
-       "gumbel, queue, learn (the sandbox's rules at T = epsilon), mixed-noise (probit: normal shocks); "
-       "queue, learn and mixed-noise are misspecified")
-      ("epsilon", po::value<std::string>()->default_value("loguniform(0.01, 1)"),
-       "true transport temperature (gain units): a law drawn per case, or a grid")
-      ("units", po::value<std::string>()->default_value("5000"),
-       "units in each allocation: a number, a grid, or e.g. loguniform(200, 50000)")
-      ("shape", po::value<std::string>(), "agents and partners per case, e.g. 'agents=10..60, partners=10..80' "
-                                          "(default: --agents x --partners)")
-      ("agents", po::value<long>()->default_value(20), "rows of each allocation (without --shape)")
-      ("partners", po::value<long>()->default_value(15), "columns of each allocation (without --shape)")
-      ("budgets", po::value<std::string>()->default_value("lognormal(0.5)"),
-       "laws of the budgets, one drawn per case: uniform, zipf(EXPONENT), lognormal(SIGMA)")
-      ("capacities", po::value<std::string>()->default_value("lognormal(0.5)"), "laws of the capacities, likewise")
-      ("cases", po::value<long>()->default_value(0),
-       "number of cases (0: one per family, source and listed epsilon, times --replicates)")
-      ("replicates", po::value<long>()->default_value(20), "cases per family, source and listed epsilon (--cases 0)")
-      ("seed", po::value<long>()->default_value(1), "seed of every random draw");
+  options.add_options()("out-dir", po::value<std::string>()->required(),
+                        "new (or empty) folder for the set")(
+      "truth-dir", po::value<std::string>(),
+      "folder for truth.csv, apart from the inputs (default: --out-dir)")(
+      "families", po::value<std::string>()->default_value("trait-distance, rank-product, random"),
+      "gains families, a list (rank-product, trait-distance, random, features)")(
+      "source", po::value<std::string>()->default_value("model"),
+      "how allocations are made, a list: model (multinomial from the entropic coupling), price, "
+      "gumbel, queue, learn (the sandbox's rules at T = epsilon), mixed-noise (probit: normal "
+      "shocks); "
+      "queue, learn and mixed-noise are misspecified")(
+      "epsilon", po::value<std::string>()->default_value("loguniform(0.01, 1)"),
+      "true transport temperature (gain units): a law drawn per case, or a grid")(
+      "units", po::value<std::string>()->default_value("5000"),
+      "units in each allocation: a number, a grid, or e.g. loguniform(200, 50000)")(
+      "shape", po::value<std::string>(),
+      "agents and partners per case, e.g. 'agents=10..60, partners=10..80' "
+      "(default: --agents x --partners)")("agents", po::value<long>()->default_value(20),
+                                          "rows of each allocation (without --shape)")(
+      "partners", po::value<long>()->default_value(15),
+      "columns of each allocation (without --shape)")(
+      "budgets", po::value<std::string>()->default_value("lognormal(0.5)"),
+      "laws of the budgets, one drawn per case: uniform, zipf(EXPONENT), lognormal(SIGMA)")(
+      "capacities", po::value<std::string>()->default_value("lognormal(0.5)"),
+      "laws of the capacities, likewise")(
+      "cases", po::value<long>()->default_value(0),
+      "number of cases (0: one per family, source and listed epsilon, times --replicates)")(
+      "replicates", po::value<long>()->default_value(20),
+      "cases per family, source and listed epsilon (--cases 0)")(
+      "seed", po::value<long>()->default_value(1), "seed of every random draw");
   po::variables_map vm;
   if (!parse_or_help(args, options, {}, vm, "synth", usage())) return kExitOk;
   BenchmarkOptions benchmark;
@@ -68,8 +75,9 @@ int synth_command(const Arguments& args) {
   } else {
     const std::string shape = "agents=" + std::to_string(vm["agents"].as<long>()) +
                               ", partners=" + std::to_string(vm["partners"].as<long>());
-    benchmark.shape = parse_shape_law(shape, vm["agents"].as<long>() < 2 || vm["agents"].as<long>() > 100000
-                                                 ? "--agents" : "--partners");
+    benchmark.shape = parse_shape_law(
+        shape, vm["agents"].as<long>() < 2 || vm["agents"].as<long>() > 100000 ? "--agents"
+                                                                               : "--partners");
   }
   benchmark.budgets = parse_marginal_laws(vm["budgets"].as<std::string>(), "--budgets");
   benchmark.capacities = parse_marginal_laws(vm["capacities"].as<std::string>(), "--capacities");

@@ -31,7 +31,8 @@ double read_number(const std::string& item, const std::string& where, const std:
 long read_whole(const std::string& item, const std::string& where, const std::string& text) {
   const double value = read_number(item, where, text);
   if (value != std::floor(value) || value < 2 || value > 100000) {
-    throw InputError(where, "'" + trim(item) + "' in '" + text + "' is not a whole number in [2, 100000]");
+    throw InputError(where,
+                     "'" + trim(item) + "' in '" + text + "' is not a whole number in [2, 100000]");
   }
   return static_cast<long>(value);
 }
@@ -85,12 +86,16 @@ NumberLaw parse_number_law(const std::string& text, const std::string& where, bo
     }
     return law;
   }
-  if (text.find("uniform") != std::string::npos) {
-    throw InputError(where, "'" + law.text + "' is not a law; write loguniform(a, b) or uniform(a, b)");
+  static const std::regex grid(R"(^\s*(log|linear)\s*\(.*$)");
+  if (text.find('(') != std::string::npos && !std::regex_match(text, grid)) {
+    throw InputError(where, "'" + law.text +
+                                "' is not a number, a list, log(a, b, n), linear(a, b, n), "
+                                "loguniform(a, b) or uniform(a, b)");
   }
   for (const std::string& item : expand_sweep_values(text, where)) {
     const double value = read_number(item, where, law.text);
-    if (positive && !(value > 0)) throw InputError(where, "'" + item + "' in '" + law.text + "' is not > 0");
+    if (positive && !(value > 0))
+      throw InputError(where, "'" + item + "' in '" + law.text + "' is not > 0");
     law.values.push_back(value);
   }
   return law;
@@ -101,7 +106,8 @@ long WholeRange::draw(RandomStream& rng) const {
 }
 
 ShapeLaw parse_shape_law(const std::string& text, const std::string& where) {
-  static const std::regex item_form(R"(^\s*(agents|partners)\s*=\s*([^.]+?)\s*(?:\.\.\s*(.+?))?\s*$)");
+  static const std::regex item_form(
+      R"(^\s*(agents|partners)\s*=\s*([^.]+?)\s*(?:\.\.\s*(.+?))?\s*$)");
   ShapeLaw shape;
   shape.text = trim(text);
   bool seen_agents = false, seen_partners = false;
@@ -147,7 +153,8 @@ std::vector<MarginalLaw> parse_marginal_laws(const std::string& text, const std:
     }
     law.parameter = law.kind == MassKind::zipf ? 1.0 : 0.5;
     if (m[2].matched) law.parameter = read_number(m[2], where, item);
-    if (!(law.parameter >= 0)) throw InputError(where, "'" + item + "': the parameter must be >= 0");
+    if (!(law.parameter >= 0))
+      throw InputError(where, "'" + item + "': the parameter must be >= 0");
     laws.push_back(law);
   }
   return laws;

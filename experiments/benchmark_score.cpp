@@ -95,8 +95,10 @@ ScoreGroup summarise(const std::string& grouping, const std::string& group,
     all.push_back(c.relative_error);
     truths.push_back(c.truth);
     estimates.push_back(c.estimate);
-    if (std::isinf(c.estimate)) ++s.infinite;
-    else finite.push_back(c.relative_error);
+    if (std::isinf(c.estimate))
+      ++s.infinite;
+    else
+      finite.push_back(c.relative_error);
     if (c.has_interval) {
       ++s.with_interval;
       s.covered += c.covered;
@@ -114,7 +116,8 @@ ScoreGroup summarise(const std::string& grouping, const std::string& group,
   s.median_relative_error = median(all);
   for (double& e : all) e = std::abs(e);
   s.median_abs_relative_error = median(all);
-  if (s.with_interval > 0) s.coverage = static_cast<double>(s.covered) / static_cast<double>(s.with_interval);
+  if (s.with_interval > 0)
+    s.coverage = static_cast<double>(s.covered) / static_cast<double>(s.with_interval);
   s.rank_correlation = spearman(truths, estimates);
   return s;
 }
@@ -146,7 +149,9 @@ std::string band_label(int band, const std::vector<ScoredCase>& cases, bool unit
     low = std::min(low, v);
     high = std::max(high, v);
   }
-  const auto show = [&](double v) { return units ? std::to_string(std::lround(v)) : short_number(v); };
+  const auto show = [&](double v) {
+    return units ? std::to_string(std::lround(v)) : short_number(v);
+  };
   return "q" + std::to_string(band) + ": " + show(low) + " to " + show(high);
 }
 
@@ -161,8 +166,9 @@ AnswerColumns answer_columns(const CsvTable& answers) {
   a.epsilon = answers.column("epsilon");
   const bool low = answers.has_column("ci_low"), high = answers.has_column("ci_high");
   if (low != high) {
-    throw InputError(answers.path, std::string("has a ") + (low ? "ci_low" : "ci_high") + " column but no " +
-                                       (low ? "ci_high" : "ci_low") + " column; give both or neither");
+    throw InputError(answers.path, std::string("has a ") + (low ? "ci_low" : "ci_high") +
+                                       " column but no " + (low ? "ci_high" : "ci_low") +
+                                       " column; give both or neither");
   }
   a.intervals = low;
   if (low) {
@@ -173,10 +179,13 @@ AnswerColumns answer_columns(const CsvTable& answers) {
 }
 
 // Reads row r of the answers into c; throws naming the line and case.
-void read_answer(const CsvTable& answers, const AnswerColumns& columns, std::size_t r, ScoredCase& c) {
+void read_answer(const CsvTable& answers, const AnswerColumns& columns, std::size_t r,
+                 ScoredCase& c) {
   const auto& row = answers.rows[r];
   const std::string where = location(answers.path, answers.lines[r]);
-  const auto refuse = [&](const std::string& what) { throw InputError(where, "case " + c.name + ": " + what); };
+  const auto refuse = [&](const std::string& what) {
+    throw InputError(where, "case " + c.name + ": " + what);
+  };
   const bool has_low = columns.intervals && !blank(row[columns.low]);
   const bool has_high = columns.intervals && !blank(row[columns.high]);
   if (blank(row[columns.epsilon])) {
@@ -185,7 +194,9 @@ void read_answer(const CsvTable& answers, const AnswerColumns& columns, std::siz
     return;
   }
   const auto estimate = read_value(row[columns.epsilon]);
-  if (!estimate) refuse("epsilon '" + row[columns.epsilon] + "' is not a number (write inf, or leave it empty to decline)");
+  if (!estimate)
+    refuse("epsilon '" + row[columns.epsilon] +
+           "' is not a number (write inf, or leave it empty to decline)");
   if (*estimate < 0) refuse("negative estimate " + row[columns.epsilon] + " (epsilon is >= 0)");
   c.answer = AnswerKind::answered;
   c.estimate = *estimate;
@@ -206,7 +217,8 @@ void read_answer(const CsvTable& answers, const AnswerColumns& columns, std::siz
 std::vector<ScoredCase> read_truth(const CsvTable& truth) {
   const std::size_t name = truth.column("case"), epsilon = truth.column("true_epsilon");
   const auto optional_column = [&](const char* column) {
-    return truth.has_column(column) ? std::optional<std::size_t>(truth.column(column)) : std::nullopt;
+    return truth.has_column(column) ? std::optional<std::size_t>(truth.column(column))
+                                    : std::nullopt;
   };
   const auto family = optional_column("family"), source = optional_column("source"),
              misspecified = optional_column("misspecified"), units = optional_column("units"),
@@ -217,10 +229,12 @@ std::vector<ScoredCase> read_truth(const CsvTable& truth) {
     ScoredCase c;
     c.name = truth.rows[r][name];
     if (!seen.emplace(c.name, truth.lines[r]).second)
-      throw InputError(location(truth.path, truth.lines[r]), "case " + c.name + " appears twice in the truth");
+      throw InputError(location(truth.path, truth.lines[r]),
+                       "case " + c.name + " appears twice in the truth");
     c.truth = truth.number(r, epsilon);
     if (!(c.truth > 0))
-      throw InputError(location(truth.path, truth.lines[r]), "true_epsilon of " + c.name + " is not > 0");
+      throw InputError(location(truth.path, truth.lines[r]),
+                       "true_epsilon of " + c.name + " is not > 0");
     if (family) c.family = truth.rows[r][*family];
     if (source) c.source = truth.rows[r][*source];
     if (misspecified) c.misspecified = truth.rows[r][*misspecified] == "true";
@@ -234,11 +248,13 @@ std::vector<ScoredCase> read_truth(const CsvTable& truth) {
 }
 
 // The distinct values of a field, in the order of `preferred` first, then alphabetically.
-std::vector<std::string> distinct(const std::vector<ScoredCase>& cases, std::string ScoredCase::*field,
+std::vector<std::string> distinct(const std::vector<ScoredCase>& cases,
+                                  std::string ScoredCase::*field,
                                   const std::vector<std::string>& preferred = {}) {
   std::vector<std::string> values;
   for (const auto& c : cases)
-    if (std::find(values.begin(), values.end(), c.*field) == values.end()) values.push_back(c.*field);
+    if (std::find(values.begin(), values.end(), c.*field) == values.end())
+      values.push_back(c.*field);
   const auto rank = [&](const std::string& v) {
     return std::find(preferred.begin(), preferred.end(), v) - preferred.begin();
   };
@@ -274,9 +290,12 @@ JsonObject group_json(const ScoreGroup& s) {
 
 std::string fixed(double value, const char* format, int width) {
   char text[48];
-  if (std::isnan(value)) std::snprintf(text, sizeof text, "%*s", width, "-");
-  else if (std::isinf(value)) std::snprintf(text, sizeof text, "%*s", width, value > 0 ? "inf" : "-inf");
-  else std::snprintf(text, sizeof text, format, width, value);
+  if (std::isnan(value))
+    std::snprintf(text, sizeof text, "%*s", width, "-");
+  else if (std::isinf(value))
+    std::snprintf(text, sizeof text, "%*s", width, value > 0 ? "inf" : "-inf");
+  else
+    std::snprintf(text, sizeof text, format, width, value);
   return text;
 }
 
@@ -284,9 +303,12 @@ std::string fixed(double value, const char* format, int width) {
 
 std::string to_string(AnswerKind kind) {
   switch (kind) {
-    case AnswerKind::answered: return "answered";
-    case AnswerKind::declined: return "declined";
-    case AnswerKind::missing: return "missing";
+    case AnswerKind::answered:
+      return "answered";
+    case AnswerKind::declined:
+      return "declined";
+    case AnswerKind::missing:
+      return "missing";
   }
   return "?";
 }
@@ -304,9 +326,11 @@ ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
     const std::string where = location(answers.path, answers.lines[r]);
     const auto found = index.find(name);
     if (found == index.end())
-      throw InputError(where, "answers case '" + name + "', which the truth does not hold (wrong benchmark set?)");
+      throw InputError(where, "answers case '" + name +
+                                  "', which the truth does not hold (wrong benchmark set?)");
     if (!answered_at.emplace(name, answers.lines[r]).second)
-      throw InputError(where, "answers case " + name + " twice (first on line " + std::to_string(answered_at[name]) + ")");
+      throw InputError(where, "answers case " + name + " twice (first on line " +
+                                  std::to_string(answered_at[name]) + ")");
     read_answer(answers, columns, r, report.cases[found->second]);
   }
 
@@ -318,7 +342,8 @@ ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
     units_known = units_known && !std::isnan(c.units);
   }
   const std::vector<int> epsilon_bands = quintile_bands(truths);
-  const std::vector<int> units_bands = units_known ? quintile_bands(units) : std::vector<int>(units.size(), 0);
+  const std::vector<int> units_bands =
+      units_known ? quintile_bands(units) : std::vector<int>(units.size(), 0);
   for (std::size_t k = 0; k < report.cases.size(); ++k) {
     report.cases[k].epsilon_band = epsilon_bands[k];
     report.cases[k].units_band = units_bands[k];
@@ -328,17 +353,21 @@ ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
   const auto& cases = report.cases;
   groups.push_back(summarise("all", "all", cases, [](const ScoredCase&) { return true; }));
   for (const auto& f : distinct(cases, &ScoredCase::family))
-    groups.push_back(summarise("family", f, cases, [&](const ScoredCase& c) { return c.family == f; }));
+    groups.push_back(
+        summarise("family", f, cases, [&](const ScoredCase& c) { return c.family == f; }));
   for (const auto& s : distinct(cases, &ScoredCase::source,
-                                 {"model", "price", "gumbel", "queue", "learn", "mixed-noise"}))
-    groups.push_back(summarise("source", s, cases, [&](const ScoredCase& c) { return c.source == s; }));
+                                {"model", "price", "gumbel", "queue", "learn", "mixed-noise"}))
+    groups.push_back(
+        summarise("source", s, cases, [&](const ScoredCase& c) { return c.source == s; }));
   for (const bool misspecified : {false, true}) {
     const auto member = [&](const ScoredCase& c) { return c.misspecified == misspecified; };
     if (std::any_of(cases.begin(), cases.end(), member))
-      groups.push_back(summarise("model", misspecified ? "misspecified" : "entropic model true", cases, member));
+      groups.push_back(
+          summarise("model", misspecified ? "misspecified" : "entropic model true", cases, member));
   }
   for (int band = 1; band <= kBands; ++band) {
-    if (std::find(epsilon_bands.begin(), epsilon_bands.end(), band) == epsilon_bands.end()) continue;
+    if (std::find(epsilon_bands.begin(), epsilon_bands.end(), band) == epsilon_bands.end())
+      continue;
     groups.push_back(summarise("epsilon band", band_label(band, cases, false), cases,
                                [&](const ScoredCase& c) { return c.epsilon_band == band; }));
   }
@@ -357,7 +386,9 @@ JsonObject ScoreReport::json() const {
     declined += c.answer == AnswerKind::declined;
     missing += c.answer == AnswerKind::missing;
   }
-  json.add("cases", static_cast<long long>(cases.size())).add("declined", declined).add("missing", missing);
+  json.add("cases", static_cast<long long>(cases.size()))
+      .add("declined", declined)
+      .add("missing", missing);
   json.add("all", group_json(groups.front()));
   for (const char* grouping : {"family", "source", "model", "epsilon band", "units band"}) {
     JsonObject members;
@@ -375,8 +406,8 @@ std::string ScoreReport::text() const {
     declined += c.answer == AnswerKind::declined;
     missing += c.answer == AnswerKind::missing;
   }
-  out << cases.size() << " cases: " << cases.size() - declined - missing << " answered, " << declined
-      << " declined, " << missing << " without an answer (both count as unanswered)\n";
+  out << cases.size() << " cases: " << cases.size() - declined - missing << " answered, "
+      << declined << " declined, " << missing << " without an answer (both count as unanswered)\n";
   const std::map<std::string, std::string> titles = {
       {"all", "all cases"},
       {"family", "by gains family"},
@@ -395,17 +426,21 @@ std::string ScoreReport::text() const {
       out << header;
     }
     char head[128];
-    std::snprintf(head, sizeof head, "  %-26s %6ld %8ld %4ld ", g.group.c_str(), g.cases, g.answered, g.infinite);
+    std::snprintf(head, sizeof head, "  %-26s %6ld %8ld %4ld ", g.group.c_str(), g.cases,
+                  g.answered, g.infinite);
     out << head;
     if (g.answered == 0) {
       out << "no answers\n";
       continue;
     }
-    out << fixed(g.mean_relative_error, "%+*.4f", 9) << " " << fixed(g.rms_relative_error, "%*.4f", 8) << " "
-        << fixed(g.median_relative_error, "%+*.4f", 9) << " " << fixed(g.median_abs_relative_error, "%*.4f", 9)
-        << " " << fixed(g.coverage, "%*.3f", 8) << " " << fixed(g.rank_correlation, "%*.3f", 8) << "\n";
+    out << fixed(g.mean_relative_error, "%+*.4f", 9) << " "
+        << fixed(g.rms_relative_error, "%*.4f", 8) << " "
+        << fixed(g.median_relative_error, "%+*.4f", 9) << " "
+        << fixed(g.median_abs_relative_error, "%*.4f", 9) << " " << fixed(g.coverage, "%*.3f", 8)
+        << " " << fixed(g.rank_correlation, "%*.3f", 8) << "\n";
   }
-  out << "\nbias: mean relative error (epsilon_hat - epsilon) / epsilon over finite answers; RMS likewise;\n"
+  out << "\nbias: mean relative error (epsilon_hat - epsilon) / epsilon over finite answers; RMS "
+         "likewise;\n"
       << "median, med.|rel|: of the relative error over all answers; inf: answers of infinity;\n"
       << "coverage: share of the given intervals that hold the truth; -: not computable\n"
       << "(no intervals, or fewer than 3 answers for Spearman)\n";
@@ -414,14 +449,15 @@ std::string ScoreReport::text() const {
 
 CsvTable ScoreReport::per_case_table() const {
   CsvTable table;
-  table.header = {"case",   "family",  "source",  "misspecified", "true_epsilon",  "units",    "agents",
-                  "partners", "epsilon_band", "units_band", "answer", "epsilon", "ci_low", "ci_high",
-                  "relative_error", "covered"};
+  table.header = {"case",   "family",   "source",         "misspecified", "true_epsilon", "units",
+                  "agents", "partners", "epsilon_band",   "units_band",   "answer",       "epsilon",
+                  "ci_low", "ci_high",  "relative_error", "covered"};
   for (const auto& c : cases) {
-    table.rows.push_back({c.name, c.family, c.source, c.misspecified ? "true" : "false", format_number(c.truth),
-                          cell(c.units), std::to_string(c.agents), std::to_string(c.partners),
-                          std::to_string(c.epsilon_band), std::to_string(c.units_band), to_string(c.answer),
-                          cell(c.estimate), cell(c.ci_low), cell(c.ci_high), cell(c.relative_error),
+    table.rows.push_back({c.name, c.family, c.source, c.misspecified ? "true" : "false",
+                          format_number(c.truth), cell(c.units), std::to_string(c.agents),
+                          std::to_string(c.partners), std::to_string(c.epsilon_band),
+                          std::to_string(c.units_band), to_string(c.answer), cell(c.estimate),
+                          cell(c.ci_low), cell(c.ci_high), cell(c.relative_error),
                           c.has_interval ? (c.covered ? "true" : "false") : ""});
   }
   return table;
@@ -429,15 +465,25 @@ CsvTable ScoreReport::per_case_table() const {
 
 CsvTable ScoreReport::group_table() const {
   CsvTable table;
-  table.header = {"grouping", "group", "cases", "answered", "infinite", "mean_relative_error",
-                  "rms_relative_error", "median_relative_error", "median_abs_relative_error",
-                  "with_interval", "covered", "coverage", "rank_correlation"};
+  table.header = {"grouping",
+                  "group",
+                  "cases",
+                  "answered",
+                  "infinite",
+                  "mean_relative_error",
+                  "rms_relative_error",
+                  "median_relative_error",
+                  "median_abs_relative_error",
+                  "with_interval",
+                  "covered",
+                  "coverage",
+                  "rank_correlation"};
   for (const auto& g : groups) {
     table.rows.push_back({g.grouping, g.group, std::to_string(g.cases), std::to_string(g.answered),
-                          std::to_string(g.infinite), cell(g.mean_relative_error), cell(g.rms_relative_error),
-                          cell(g.median_relative_error), cell(g.median_abs_relative_error),
-                          std::to_string(g.with_interval), std::to_string(g.covered), cell(g.coverage),
-                          cell(g.rank_correlation)});
+                          std::to_string(g.infinite), cell(g.mean_relative_error),
+                          cell(g.rms_relative_error), cell(g.median_relative_error),
+                          cell(g.median_abs_relative_error), std::to_string(g.with_interval),
+                          std::to_string(g.covered), cell(g.coverage), cell(g.rank_correlation)});
   }
   return table;
 }

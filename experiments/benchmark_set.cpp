@@ -52,7 +52,8 @@ std::vector<long> seeded_positions(long total, std::uint64_t seed) {
               order[static_cast<std::size_t>(rng.below(static_cast<std::uint64_t>(k + 1)))]);
   }
   std::vector<long> position(order.size());
-  for (long p = 0; p < total; ++p) position[static_cast<std::size_t>(order[static_cast<std::size_t>(p)])] = p;
+  for (long p = 0; p < total; ++p)
+    position[static_cast<std::size_t>(order[static_cast<std::size_t>(p)])] = p;
   return position;
 }
 
@@ -123,7 +124,8 @@ std::string readme_text(long cases, bool truth_here) {
 // A folder that must be new or empty; "" when fine.
 void require_new_folder(const fs::path& folder, const std::string& option) {
   if (fs::exists(folder) && (!fs::is_directory(folder) || !fs::is_empty(folder))) {
-    throw InputError(option, folder.string() + " exists and is not an empty folder; give a new folder");
+    throw InputError(option,
+                     folder.string() + " exists and is not an empty folder; give a new folder");
   }
 }
 
@@ -169,7 +171,8 @@ void BenchmarkOptions::validate() const {
     throw InputError("--epsilon", "give at least one value");
   if (units.kind == NumberLaw::Kind::grid && units.values.empty())
     throw InputError("--units", "give at least one value");
-  const double least_units = units.drawn() ? units.low : *std::min_element(units.values.begin(), units.values.end());
+  const double least_units =
+      units.drawn() ? units.low : *std::min_element(units.values.begin(), units.values.end());
   if (least_units < 1) throw InputError("--units", "'" + units.text + "' allows fewer than 1 unit");
   if (budgets.empty()) throw InputError("--budgets", "name at least one law");
   if (capacities.empty()) throw InputError("--capacities", "name at least one law");
@@ -200,7 +203,8 @@ std::vector<BenchmarkCase> plan_benchmark_set(const BenchmarkOptions& options) {
     c.agents = options.shape.agents.draw(rng);
     c.partners = options.shape.partners.draw(rng);
     c.budgets = options.budgets[static_cast<std::size_t>(rng.below(options.budgets.size()))];
-    c.capacities = options.capacities[static_cast<std::size_t>(rng.below(options.capacities.size()))];
+    c.capacities =
+        options.capacities[static_cast<std::size_t>(rng.below(options.capacities.size()))];
     cases[static_cast<std::size_t>(position[static_cast<std::size_t>(k)])] = c;
   }
   return cases;
@@ -215,23 +219,26 @@ long write_benchmark_set(const std::string& folder_name, const std::string& trut
   require_new_folder(folder, "--out-dir");
   if (truth_apart) {
     if (is_inside(truth_folder, folder))
-      throw InputError("--truth-dir", truth_folder_name + " lies inside the set's folder " + folder_name +
+      throw InputError("--truth-dir", truth_folder_name + " lies inside the set's folder " +
+                                          folder_name +
                                           "; the truth must stay apart from the inputs");
     if (fs::exists(truth_folder / "truth.csv"))
-      throw InputError("--truth-dir", (truth_folder / "truth.csv").string() + " exists; give another folder");
+      throw InputError("--truth-dir",
+                       (truth_folder / "truth.csv").string() + " exists; give another folder");
   }
   // Everything goes to a temporary folder renamed onto the target at the end.
   const fs::path temporary = temporary_name_for(fs::absolute(folder).lexically_normal().string());
   std::error_code error;
   fs::create_directories(temporary, error);
-  if (error) throw InputError("--out-dir", folder_name + " cannot be created (" + error.message() + ")");
+  if (error)
+    throw InputError("--out-dir", folder_name + " cannot be created (" + error.message() + ")");
   std::ostringstream truth;
   truth << truth_header();
   try {
     {
       ResultsFile h5((temporary / "inputs.h5").string(),
-                     "# inputs of a benchmark set written by allocsim synth: " + std::to_string(cases.size()) +
-                         " cases; the truth is kept apart\n",
+                     "# inputs of a benchmark set written by allocsim synth: " +
+                         std::to_string(cases.size()) + " cases; the truth is kept apart\n",
                      options.tool_version);
       long done = 0;
       for (const BenchmarkCase& c : cases) {
@@ -239,8 +246,9 @@ long write_benchmark_set(const std::string& folder_name, const std::string& trut
             make_scenario(scenario_of(c, options.seed), static_cast<std::uint64_t>(c.design_index));
         Matrix allocation;
         try {
-          allocation = draw_benchmark_allocation(problem, c.source, c.epsilon, c.units, options.seed,
-                                                 static_cast<std::uint64_t>(c.design_index));
+          allocation =
+              draw_benchmark_allocation(problem, c.source, c.epsilon, c.units, options.seed,
+                                        static_cast<std::uint64_t>(c.design_index));
         } catch (const std::runtime_error& e) {
           throw std::runtime_error(c.name + ": " + e.what());
         }
@@ -252,9 +260,9 @@ long write_benchmark_set(const std::string& folder_name, const std::string& trut
         write_vector_lines(case_folder / "capacities.csv", problem.capacities);
         write_case_run(h5, c, problem, allocation);
         truth << c.name << "," << c.family << "," << to_string(c.source) << ","
-              << (is_misspecified(c.source) ? "true" : "false") << "," << format_number(c.epsilon) << ","
-              << format_number(allocation.sum()) << "," << c.agents << "," << c.partners << ","
-              << c.budgets.text() << "," << c.capacities.text() << "\n";
+              << (is_misspecified(c.source) ? "true" : "false") << "," << format_number(c.epsilon)
+              << "," << format_number(allocation.sum()) << "," << c.agents << "," << c.partners
+              << "," << c.budgets.text() << "," << c.capacities.text() << "\n";
         if (progress) progress(++done, static_cast<long>(cases.size()));
       }
       h5.commit();
@@ -271,7 +279,9 @@ long write_benchmark_set(const std::string& folder_name, const std::string& trut
     throw;
   }
   fs::create_directories(truth_folder, error);
-  if (error) throw InputError("--truth-dir", truth_folder_name + " cannot be created (" + error.message() + ")");
+  if (error)
+    throw InputError("--truth-dir",
+                     truth_folder_name + " cannot be created (" + error.message() + ")");
   AtomicFile truth_file((truth_folder / "truth.csv").string());
   truth_file.stream() << truth.str();
   truth_file.commit();

@@ -27,9 +27,10 @@ struct RoundPlan {
 
 RoundPlan round_plan(long units) {
   RoundPlan plan;
-  plan.units_per_round = std::max(kLeastUnitsPerRound, (units + kRecordedRounds - 1) / kRecordedRounds);
-  plan.recorded_rounds =
-      std::max(1L, std::lround(static_cast<double>(units) / static_cast<double>(plan.units_per_round)));
+  plan.units_per_round =
+      std::max(kLeastUnitsPerRound, (units + kRecordedRounds - 1) / kRecordedRounds);
+  plan.recorded_rounds = std::max(
+      1L, std::lround(static_cast<double>(units) / static_cast<double>(plan.units_per_round)));
   return plan;
 }
 
@@ -44,13 +45,13 @@ Matrix model_allocation(const TransportProblem& problem, double temperature, lon
   }
   Matrix counts = Matrix::Zero(problem.agents(), problem.partners());
   RandomStream rng(seed, case_key, StreamId::dynamics);
-  add_multinomial(rng, units, coupling.coupling.data(), coupling.coupling.size(), coupling.coupling.sum(),
-                  counts.data());
+  add_multinomial(rng, units, coupling.coupling.data(), coupling.coupling.size(),
+                  coupling.coupling.sum(), counts.data());
   return counts;
 }
 
-Matrix rule_allocation(const TransportProblem& problem, RuleKind rule, double temperature, long units,
-                       std::uint64_t seed, std::uint64_t case_key) {
+Matrix rule_allocation(const TransportProblem& problem, RuleKind rule, double temperature,
+                       long units, std::uint64_t seed, std::uint64_t case_key) {
   const RoundPlan plan = round_plan(units);
   DynamicsOptions dynamics;
   dynamics.rule = rule;
@@ -70,7 +71,8 @@ Matrix probit_allocation(const TransportProblem& problem, double temperature, lo
   const RoundPlan plan = round_plan(units);
   const long n = problem.agents(), m = problem.partners();
   const double shock_scale = temperature * kGumbelSd;
-  const Vector capacity = problem.capacities * (static_cast<double>(plan.units_per_round) / problem.capacities.sum());
+  const Vector capacity =
+      problem.capacities * (static_cast<double>(plan.units_per_round) / problem.capacities.sum());
   RoundQuota quota(plan.units_per_round,
                    std::vector<double>(problem.budgets.data(), problem.budgets.data() + n));
   Vector prices = Vector::Zero(m);
@@ -107,22 +109,30 @@ Matrix probit_allocation(const TransportProblem& problem, double temperature, lo
 
 std::string to_string(BenchmarkSource source) {
   switch (source) {
-    case BenchmarkSource::model: return "model";
-    case BenchmarkSource::price: return "price";
-    case BenchmarkSource::gumbel: return "gumbel";
-    case BenchmarkSource::queue: return "queue";
-    case BenchmarkSource::learn: return "learn";
-    case BenchmarkSource::mixed_noise: return "mixed-noise";
+    case BenchmarkSource::model:
+      return "model";
+    case BenchmarkSource::price:
+      return "price";
+    case BenchmarkSource::gumbel:
+      return "gumbel";
+    case BenchmarkSource::queue:
+      return "queue";
+    case BenchmarkSource::learn:
+      return "learn";
+    case BenchmarkSource::mixed_noise:
+      return "mixed-noise";
   }
   return "?";
 }
 
 BenchmarkSource benchmark_source_from_string(const std::string& text, const std::string& where) {
-  for (const auto source : {BenchmarkSource::model, BenchmarkSource::price, BenchmarkSource::gumbel,
-                            BenchmarkSource::queue, BenchmarkSource::learn, BenchmarkSource::mixed_noise}) {
+  for (const auto source :
+       {BenchmarkSource::model, BenchmarkSource::price, BenchmarkSource::gumbel,
+        BenchmarkSource::queue, BenchmarkSource::learn, BenchmarkSource::mixed_noise}) {
     if (text == to_string(source)) return source;
   }
-  throw InputError(where, "'" + text + "' is not one of model, price, gumbel, queue, learn, mixed-noise");
+  throw InputError(where,
+                   "'" + text + "' is not one of model, price, gumbel, queue, learn, mixed-noise");
 }
 
 bool is_misspecified(BenchmarkSource source) {
@@ -134,12 +144,18 @@ Matrix draw_benchmark_allocation(const TransportProblem& problem, BenchmarkSourc
                                  double temperature, long units, std::uint64_t seed,
                                  std::uint64_t case_key) {
   switch (source) {
-    case BenchmarkSource::model: return model_allocation(problem, temperature, units, seed, case_key);
-    case BenchmarkSource::price: return rule_allocation(problem, RuleKind::price, temperature, units, seed, case_key);
-    case BenchmarkSource::gumbel: return rule_allocation(problem, RuleKind::gumbel, temperature, units, seed, case_key);
-    case BenchmarkSource::queue: return rule_allocation(problem, RuleKind::queue, temperature, units, seed, case_key);
-    case BenchmarkSource::learn: return rule_allocation(problem, RuleKind::learn, temperature, units, seed, case_key);
-    case BenchmarkSource::mixed_noise: return probit_allocation(problem, temperature, units, seed, case_key);
+    case BenchmarkSource::model:
+      return model_allocation(problem, temperature, units, seed, case_key);
+    case BenchmarkSource::price:
+      return rule_allocation(problem, RuleKind::price, temperature, units, seed, case_key);
+    case BenchmarkSource::gumbel:
+      return rule_allocation(problem, RuleKind::gumbel, temperature, units, seed, case_key);
+    case BenchmarkSource::queue:
+      return rule_allocation(problem, RuleKind::queue, temperature, units, seed, case_key);
+    case BenchmarkSource::learn:
+      return rule_allocation(problem, RuleKind::learn, temperature, units, seed, case_key);
+    case BenchmarkSource::mixed_noise:
+      return probit_allocation(problem, temperature, units, seed, case_key);
   }
   return {};
 }

@@ -58,7 +58,7 @@ ShapeLaw parse_shape_law(const std::string& text, const std::string& where);
 
 struct MarginalLaw {
   MassKind kind = MassKind::lognormal;
-  double parameter = 0.5;  // zipf exponent or lognormal sigma; unused for uniform
+  double parameter = 0.5;    // zipf exponent or lognormal sigma; unused for uniform
   std::string text() const;  // "uniform", "zipf(1)", "lognormal(0.5)"
 };
 

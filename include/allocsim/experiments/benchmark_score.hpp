@@ -67,7 +67,7 @@ struct ScoreGroup {
 };
 
 struct ScoreReport {
-  std::vector<ScoredCase> cases;  // in the truth's order
+  std::vector<ScoredCase> cases;   // in the truth's order
   std::vector<ScoreGroup> groups;  // all, families, sources, epsilon bands, units bands
 
   // {"all": {...}, "family": {"trait-distance": {...}}, "source": {...}, "model": {...},

@@ -45,8 +45,8 @@ struct BenchmarkOptions {
   std::vector<BenchmarkSource> sources = {BenchmarkSource::model};
   NumberLaw epsilon = parse_number_law("loguniform(0.01, 1)", "--epsilon");  // gain units
   NumberLaw units = parse_number_law("5000", "--units");  // whole units per allocation (rounded)
-  ShapeLaw shape;                                           // default 20 x 15
-  std::vector<MarginalLaw> budgets = {MarginalLaw{}};       // lognormal(0.5)
+  ShapeLaw shape;                                         // default 20 x 15
+  std::vector<MarginalLaw> budgets = {MarginalLaw{}};     // lognormal(0.5)
   std::vector<MarginalLaw> capacities = {MarginalLaw{}};
   long cases = 0;       // 0: one per design cell and replicate
   long replicates = 4;  // used when cases = 0

@@ -41,7 +41,8 @@ enum class BenchmarkSource { model, price, gumbel, queue, learn, mixed_noise };
 // "model", "price", "gumbel", "queue", "learn", "mixed-noise".
 std::string to_string(BenchmarkSource source);
 // Throws InputError(where, ...) listing the valid words.
-BenchmarkSource benchmark_source_from_string(const std::string& text, const std::string& where = "--source");
+BenchmarkSource benchmark_source_from_string(const std::string& text,
+                                             const std::string& where = "--source");
 bool is_misspecified(BenchmarkSource source);
 
 // The allocation (whole units, n x m) of case `case_key` drawn at
