@@ -58,7 +58,10 @@ int score_command(const Arguments& args) {
     if (ends_with(out, ".csv"))
       write_csv(out, report.per_case_table());
     else
-      throw InputError("--out", "scores.h5 is not written yet");
+      write_score_file(out, report,
+                       "# scores of " + vm["answers"].as<std::string>() + " against " +
+                           vm["truth"].as<std::string>() + " (allocsim score)\n",
+                       ALLOCSIM_VERSION);
   }
   if (vm.count("groups-csv")) write_csv(vm["groups-csv"].as<std::string>(), report.group_table());
   if (vm.count("json")) {

@@ -59,6 +59,7 @@ allocsim_layer(experiments
     experiments/benchmark_sources.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
+    experiments/score_file.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
     experiments/sweep_runner.cpp
