@@ -239,6 +239,19 @@ def main():
         recompute(truth_rows, answers, scores)
         rows = list(csv.DictReader(open(per_case)))
         check(len(rows) == 40 and all(r["answer"] == "answered" for r in rows), "per-case CSV is off")
+        scores_h5 = os.path.join(tmp, "scores.h5")
+        scored = run(binary, "score", "--truth", truth_path, "--answers", answers_path, "--out", scores_h5)
+        check(scored.returncode == 0, f"score --out scores.h5: {scored.stderr}")
+        with h5py.File(scores_h5, "r") as h5:  # h5py reads what the per-case CSV holds
+            check(h5.attrs["format"] == "allocsim-results", "scores.h5 is not an allocsim results file")
+            summary = h5["summary"]
+            check([c.decode() for c in summary["case"][()]] == [r["case"] for r in rows], "scores.h5 cases differ")
+            for column in ["true_epsilon", "epsilon", "ci_low", "ci_high", "relative_error", "units"]:
+                from_csv = np.array([float(r[column]) if r[column] else np.nan for r in rows])
+                check(np.allclose(summary[column][()], from_csv, equal_nan=True, rtol=0, atol=0),
+                      f"scores.h5 column {column} differs from the CSV")
+            covered = np.array([{"true": 1.0, "false": 0.0}.get(r["covered"], np.nan) for r in rows])
+            check(np.array_equal(summary["covered"][()], covered, equal_nan=True), "scores.h5 covered differs")
         groups = list(csv.DictReader(open(groups_csv)))
         check({g["grouping"] for g in groups} == {"all", "family", "source", "model", "epsilon band", "units band"},
               f"groupings {sorted({g['grouping'] for g in groups})}")
