@@ -1,7 +1,5 @@
 #include "allocsim/experiments/benchmark_set.hpp"
 
-#include <H5Cpp.h>
-
 #include <algorithm>
 #include <cstdio>
 #include <filesystem>
@@ -14,8 +12,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
-#include "allocsim/results/hdf5_io.hpp"
-#include "allocsim/results/recorder.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/scenario.hpp"
 
@@ -96,8 +93,10 @@ std::string readme_text(long cases, bool truth_here) {
       << "inputs.h5                     the same, as an allocsim results file (HDF5, readable\n"
       << "                              with h5py): /runs/<case>/allocation/total,\n"
       << "                              /runs/<case>/scenario/gains, budgets, capacities;\n"
-      << "                              attributes of /runs/<case>: case, agents, partners,\n"
-      << "                              units. `allocsim analyze inputs.h5 --json` reads it.\n"
+      << "                              attributes of /runs/<case>: status, scenario.agents,\n"
+      << "                              scenario.partners, units_after_burn_in (the units of\n"
+      << "                              the allocation). `allocsim analyze inputs.h5 --json`\n"
+      << "                              and `allocsim inspect inputs.h5` read it.\n"
       << "README.txt                    this description\n";
   if (truth_here) {
     out << "truth.csv                     the answer key (see below): remove it before handing\n"
@@ -144,18 +143,17 @@ void write_vector_lines(const fs::path& path, const Vector& values) {
   file.commit();
 }
 
-// The case as one run group of inputs.h5 (the simulated-run layout).
+// The case as one run group of inputs.h5 (the simulated-run layout); its
+// attributes tell nothing of the design.
 void write_case_run(ResultsFile& file, const BenchmarkCase& c, const TransportProblem& problem,
                     const Matrix& allocation) {
-  H5::Group run = file.create_run(c.name);
-  set_text_attribute(run, "case", c.name);
-  set_text_attribute(run, "status", "complete");
-  set_integer_attribute(run, "agents", c.agents);
-  set_integer_attribute(run, "partners", c.partners);
-  set_number_attribute(run, "units", allocation.sum());
-  write_scenario(run, problem);
-  H5::Group group = run.createGroup("allocation");
-  write_matrix(group, "total", allocation);
+  RunWriter run = file.create_run(c.name);
+  run.set_text(layout::kStatus, layout::kStatusComplete);
+  run.set_integer("scenario.agents", c.agents);
+  run.set_integer("scenario.partners", c.partners);
+  run.set_number(layout::kUnitsAfterBurnIn, allocation.sum());
+  run.write_scenario(problem);
+  run.write_matrix(layout::kTotal, allocation);
 }
 
 }  // namespace

@@ -1,6 +1,7 @@
 #include <cmath>
 
 #include "allocsim/experiments/benchmark_score.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 
 namespace allocsim {
@@ -34,19 +35,22 @@ void write_score_file(const std::string& path, const ScoreReport& report,
     relative_error.push_back(c.relative_error);
     covered.push_back(flag(c.has_interval, c.covered));
   }
-  table.texts = {{"case", names}, {"family", families}, {"source", sources}, {"answer", answers}};
-  table.numbers = {{"misspecified", misspecified},
-                   {"true_epsilon", truth},
-                   {"units", units},
-                   {"agents", agents},
-                   {"partners", partners},
-                   {"epsilon_band", epsilon_band},
-                   {"units_band", units_band},
-                   {"epsilon", estimate},
-                   {"ci_low", low},
-                   {"ci_high", high},
-                   {"relative_error", relative_error},
-                   {"covered", covered}};
+  table.texts = {{layout::kCaseColumn, names},
+                 {layout::kFamilyColumn, families},
+                 {layout::kSourceColumn, sources},
+                 {layout::kAnswerColumn, answers}};
+  table.numbers = {{layout::kMisspecifiedColumn, misspecified},
+                   {layout::kTrueEpsilonColumn, truth},
+                   {layout::kUnitsColumn, units},
+                   {layout::kAgentsColumn, agents},
+                   {layout::kPartnersColumn, partners},
+                   {layout::kEpsilonBandColumn, epsilon_band},
+                   {layout::kUnitsBandColumn, units_band},
+                   {layout::kEpsilon, estimate},
+                   {layout::kEpsilonCiLow, low},
+                   {layout::kEpsilonCiHigh, high},
+                   {layout::kRelativeErrorColumn, relative_error},
+                   {layout::kCoveredColumn, covered}};
   ResultsFile file(path, description, tool_version);
   file.write_summary(table);
   file.commit();

@@ -66,7 +66,7 @@ def check_blind_layout(folder, truth_rows):
         for name in names[:5]:
             run_group = h5["runs"][name]
             for attribute in run_group.attrs:
-                check(attribute in ("case", "status", "agents", "partners", "units"),
+                check(attribute in ("status", "scenario.agents", "scenario.partners", "units_after_burn_in"),
                       f"{name}: inputs.h5 attribute {attribute} may reveal the design")
             total = run_group["allocation/total"][()]
             from_csv = np.loadtxt(os.path.join(folder, "inputs", name, "allocation.csv"), delimiter=",", ndmin=2)
@@ -246,12 +246,23 @@ def main():
             check(h5.attrs["format"] == "allocsim-results", "scores.h5 is not an allocsim results file")
             summary = h5["summary"]
             check([c.decode() for c in summary["case"][()]] == [r["case"] for r in rows], "scores.h5 cases differ")
-            for column in ["true_epsilon", "epsilon", "ci_low", "ci_high", "relative_error", "units"]:
+            for column, name in [("true_epsilon", "true_epsilon"), ("epsilon", "epsilon"), ("ci_low", "epsilon_ci_low"),
+                                 ("ci_high", "epsilon_ci_high"), ("relative_error", "relative_error"),
+                                 ("units", "units")]:
                 from_csv = np.array([float(r[column]) if r[column] else np.nan for r in rows])
-                check(np.allclose(summary[column][()], from_csv, equal_nan=True, rtol=0, atol=0),
+                check(np.allclose(summary[name][()], from_csv, equal_nan=True, rtol=0, atol=0),
                       f"scores.h5 column {column} differs from the CSV")
             covered = np.array([{"true": 1.0, "false": 0.0}.get(r["covered"], np.nan) for r in rows])
             check(np.array_equal(summary["covered"][()], covered, equal_nan=True), "scores.h5 covered differs")
+        figures = os.path.join(tmp, "figures")
+        drawn = run(binary, "plot", scores_h5, "--out-dir", figures, "--script-only")
+        script = os.path.join(figures, "estimator-scores.gp")
+        check(drawn.returncode == 0 and drawn.stdout.split() == [script], f"plot scores.h5: {drawn.stdout!r} {drawn.stderr}")
+        if os.path.exists(script):
+            text = open(script).read()
+            for words in ["estimate against truth", "error against units", "coverage of the intervals",
+                          "by true epsilon", "by units", "queue", "mixed-noise"]:
+                check(words in text, f"the estimator-scores figure lacks {words!r}")
         groups = list(csv.DictReader(open(groups_csv)))
         check({g["grouping"] for g in groups} == {"all", "family", "source", "model", "epsilon band", "units band"},
               f"groupings {sorted({g['grouping'] for g in groups})}")

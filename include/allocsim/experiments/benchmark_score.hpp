@@ -83,10 +83,12 @@ struct ScoreReport {
 
 ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers);
 
-// Writes the scores as a results file: /summary holds one row per case (the
-// columns of per_case_table(); case, family, source and answer as text, the
-// others as numbers: misspecified and covered 1/0, NaN where empty, inf for
-// an estimate of infinity). `description` goes into the root attribute
+// Writes the scores as a results file without runs: /summary holds one row
+// per case (the columns of per_case_table() under the names of
+// results/layout.hpp: ci_low and ci_high as epsilon_ci_low and
+// epsilon_ci_high; case, family, source and answer as text, the others as
+// numbers: misspecified and covered 1/0, NaN where empty, inf for an
+// estimate of infinity). `description` goes into the root attribute
 // experiment. Appears complete or not at all.
 void write_score_file(const std::string& path, const ScoreReport& report,
                       const std::string& description, const std::string& tool_version);

@@ -19,7 +19,8 @@
 //   inputs.h5                   a results file, one run group per case
 //                               (/runs/<case>/scenario/gains, budgets,
 //                               capacities; /runs/<case>/allocation/total;
-//                               attributes case, agents, partners, units):
+//                               attributes status, scenario.agents,
+//                               scenario.partners, units_after_burn_in):
 //                               `allocsim analyze inputs.h5` reads it
 //   inputs/<case>/allocation.csv, gains.csv, budgets.csv, capacities.csv
 //   truth.csv                   case, family, source, misspecified,

@@ -170,31 +170,6 @@ struct Trajectories {
 std::string draw_trajectories(const Trajectories& figure, const std::string& stem,
                               const FigureOptions& options = {});
 
-// An estimator's scores on benchmark sets with known temperature, one
-// series per set (e.g. per gains family): left, the relative error
-// (epsilon_hat - epsilon) / epsilon with a bar from its first to third
-// quartile; right, the share of intervals that cover the truth, against the
-// nominal level.
-struct BenchmarkScore {
-  double true_epsilon = 0;       // > 0
-  double median_relative_error = 0;
-  double quartile_low = kNoValue;   // of the relative error; NaN when not known
-  double quartile_high = kNoValue;
-  double coverage = kNoValue;    // in [0, 1]; NaN when no intervals
-  long cases = 0;
-};
-struct BenchmarkSeries {
-  std::string label;  // plain text, e.g. "trait-distance gains"
-  std::vector<BenchmarkScore> scores;
-};
-struct EstimatorScores {
-  std::string title;
-  std::vector<BenchmarkSeries> sets;
-  double nominal_coverage = 0.95;
-};
-std::string draw_estimator_scores(const EstimatorScores& figure, const std::string& stem,
-                                  const FigureOptions& options = {});
-
 // An estimator's score card on a blind benchmark set (`allocsim score`,
 // drawn by `allocsim plot scores.h5`), four panels: the estimate against the
 // truth (log axes, identity line); the ratio estimate / truth (relative error
