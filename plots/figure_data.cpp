@@ -109,19 +109,26 @@ std::vector<int> quintile_bands(const std::vector<double>& values) {
   return bands;
 }
 
-void add_coverage_bands(const std::string& axis, const std::vector<int>& bands,
-                        const std::vector<int>& covered, EstimatorScoreCard& card) {
+// Coverage per band of the cases whose group is `group` (all when empty).
+void add_coverage_bands(const std::string& axis, const std::vector<int>& bands, const std::vector<int>& covered,
+                        const std::vector<std::string>& groups, const std::string& group,
+                        EstimatorScoreCard& card) {
   for (int band = 1; band <= 5; ++band) {
-    CoverageBand b{axis, band, kNoValue, 0};
+    CoverageBand b{group.empty() ? axis : axis + " (" + group + ")", band, kNoValue, 0};
     long hits = 0;
     for (std::size_t k = 0; k < bands.size(); ++k) {
-      if (bands[k] != band || covered[k] < 0) continue;
+      if (bands[k] != band || covered[k] < 0 || (!group.empty() && groups[k] != group)) continue;
       ++b.intervals;
       hits += covered[k];
     }
     if (b.intervals > 0) b.coverage = static_cast<double>(hits) / static_cast<double>(b.intervals);
     card.bands.push_back(b);
   }
+}
+
+int source_rank(const std::string& source) {
+  static const std::vector<std::string> order = {"model", "price", "gumbel", "queue", "learn", "mixed-noise"};
+  return static_cast<int>(std::find(order.begin(), order.end(), source) - order.begin());
 }
 
 }  // namespace
@@ -131,7 +138,8 @@ EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records) {
   card.title = "temperature estimator on a benchmark set";
   std::vector<double> truths, units;
   std::vector<int> covered;  // 1, 0, or -1 without an interval
-  bool units_known = true;
+  std::vector<std::string> specification;
+  bool units_known = true, misspecified = false;
   for (const auto& r : records) {
     const auto truth = r.number(layout::kTrueEpsilonColumn);
     if (!truth || !(*truth > 0) || !std::isfinite(*truth)) continue;
@@ -146,12 +154,23 @@ EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records) {
     covered.push_back(interval ? (low <= *truth && *truth <= high ? 1 : 0) : -1);
     truths.push_back(*truth);
     units.push_back(e.units);
+    const bool off_model = r.number(layout::kMisspecifiedColumn).value_or(0) == 1;
+    misspecified = misspecified || off_model;
+    specification.push_back(off_model ? "misspecified" : "entropic model true");
     units_known = units_known && std::isfinite(e.units);
     card.cases.push_back(e);
   }
   if (card.cases.empty()) return card;
-  add_coverage_bands("true epsilon", quintile_bands(truths), covered, card);
-  if (units_known) add_coverage_bands("units", quintile_bands(units), covered, card);
+  // Coverage apart for the cases whose source has the entropic model as its mean and the others.
+  const std::vector<std::string> groups =
+      misspecified ? std::vector<std::string>{"entropic model true", "misspecified"} : std::vector<std::string>{""};
+  for (const auto& group : groups) {
+    add_coverage_bands("true epsilon", quintile_bands(truths), covered, specification, group, card);
+    if (units_known) add_coverage_bands("units", quintile_bands(units), covered, specification, group, card);
+  }
+  std::stable_sort(card.cases.begin(), card.cases.end(), [](const ScoredEstimate& a, const ScoredEstimate& b) {
+    return source_rank(a.series) < source_rank(b.series);
+  });
   return card;
 }
 

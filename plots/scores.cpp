@@ -88,7 +88,7 @@ std::string draw_estimator_score_card(const EstimatorScoreCard& figure, const st
       note += std::to_string(p.off_scale) + " estimates of 0 or infinity not shown";
     if (p.unanswered > 0)
       note += std::string(note.empty() ? "" : "; ") + std::to_string(p.unanswered) + " unanswered";
-    gp << "set label 1 " << quote_gnuplot_text(note) << " at screen 0.99, screen 0.01 right\n";
+    gp << "set label 1 " << quote_gnuplot_text(note) << " at screen 0.99, screen 0.975 right\n";
   }
   std::vector<double> both = p.truths;
   both.insert(both.end(), p.estimates.begin(), p.estimates.end());
@@ -100,7 +100,7 @@ std::string draw_estimator_score_card(const EstimatorScoreCard& figure, const st
   gp << "unset label 1\n";
 
   const std::string ratio_label = markup("{/Symbol e}_{est} / {/Symbol e}  (relative error + 1)");
-  gp << "set title 'error against truth'\nset ylabel " << ratio_label << "\n"
+  gp << "unset key\nset title 'error against truth'\nset ylabel " << ratio_label << "\n"
      << log_axis("x", p.truths) << log_axis("y", p.ratios);
   scatter(gp, p, 0, 2, "1 with lines ls 20 notitle");
 
@@ -119,7 +119,7 @@ std::string draw_estimator_score_card(const EstimatorScoreCard& figure, const st
      << "set format y '%g'\nset xlabel 'quintile band (1 = lowest)'\n"
      << "set ylabel 'share of intervals that cover the truth'\nset xrange [0.5:5.5]\nset yrange "
         "[0:1.05]\n"
-     << "set xtics 1\nset key bottom left\n"
+     << "set xtics 1\nset key right center\n"
      << "plot " << number(figure.nominal_coverage) << " with lines ls 20 title "
      << quote_gnuplot_text("nominal " + number(100 * figure.nominal_coverage) + "%");
   std::vector<std::string> axes;

@@ -53,8 +53,11 @@ double quantile(const std::vector<double>& sorted, double q);
 // (kUnitsColumn, else kUnitsAfterBurnIn), one series per source (else per
 // family), and the coverage of the intervals (kEpsilonCiLow, kEpsilonCiHigh)
 // per quintile band of the truth and of the units, banded as `allocsim
-// score` bands them (band k: above the (k-1)th quintile, up to the kth).
-// No cases when no record has a positive true epsilon.
+// score` bands them (band k: above the (k-1)th quintile, up to the kth);
+// when some records are misspecified (kMisspecifiedColumn = 1), coverage is
+// given apart for them and for the others ("true epsilon (misspecified)").
+// Cases in source order (model, price, gumbel, queue, learn, mixed-noise,
+// then the others). No cases when no record has a positive true epsilon.
 EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records);
 
 // L1 marginal errors ||P 1/N - r/sum r||_1 and ||P^T 1/N - c/sum c||_1 of
