@@ -61,9 +61,13 @@ allocsim_layer(results
 allocsim_layer(experiments
   SOURCES
     experiments/analysis_settings.cpp
+    experiments/benchmark_draws.cpp
+    experiments/benchmark_score.cpp
     experiments/benchmark_set.cpp
+    experiments/benchmark_sources.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
+    experiments/score_file.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
     experiments/sweep_runner.cpp
