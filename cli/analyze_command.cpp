@@ -2,6 +2,7 @@
 // structure of an allocation, from CSV files or from the runs of a results file.
 #include <H5Cpp.h>
 
+#include <cerrno>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -12,6 +13,8 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/analysis/allocation_report.hpp"
 #include "allocsim/results/report_writer.hpp"
@@ -49,6 +52,10 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
     nulls.samples = vm["null-samples"].as<long>();
     nulls.seed = static_cast<std::uint64_t>(vm["null-seed"].as<long>());
     if (nulls.samples < 2) throw InputError("--null-samples", "must be at least 2");
+    // The ensemble keeps one value per sample and metric (NODF, WNODF).
+    require_memory(static_cast<double>(nulls.samples) * 2 * sizeof(double),
+                   "a null ensemble of " + std::to_string(nulls.samples) + " samples", "--null-samples",
+                   "use fewer samples");
     options.nulls = nulls;
   }
   return options;
@@ -116,10 +123,15 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
     }
   }
   if (vm.count("write")) {
-    // A copy beside the file takes the analysis; it replaces the file only when complete.
-    const std::string temporary = temporary_name_for(path);
-    std::filesystem::copy_file(path, temporary, std::filesystem::copy_options::overwrite_existing);
+    // A copy beside the file (a symlink's target) takes the analysis; it
+    // replaces the file only when complete.
+    const std::string target = require_regular_output(path, path).path;
+    const OutputLock lock(target);
+    remove_orphan_temporaries(target);
+    const std::string temporary = temporary_name_for(target);
     try {
+      errno = 0;
+      std::filesystem::copy_file(target, temporary, std::filesystem::copy_options::overwrite_existing);
       {
         H5::H5File file(temporary, H5F_ACC_RDWR);
         for (std::size_t k = 0; k < runs.size(); ++k) {
@@ -127,7 +139,14 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
           write_allocation_report(run_group, reports[k]);
         }
       }
-      std::filesystem::rename(temporary, path);
+      std::filesystem::rename(temporary, target);
+    } catch (const H5::Exception& e) {
+      const int error = errno;
+      std::remove(temporary.c_str());
+      throw WriteError(path, write_failure_cause(target, "HDF5 error: " + e.getDetailMsg(), error));
+    } catch (const std::filesystem::filesystem_error& e) {
+      std::remove(temporary.c_str());
+      throw WriteError(path, e.code().message());
     } catch (...) {
       std::remove(temporary.c_str());
       throw;

@@ -2,6 +2,7 @@
 #include <iostream>
 
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
 #include "allocsim/experiments/benchmark_set.hpp"
 #include "allocsim/experiments/sweep.hpp"
 #include "commands.hpp"
@@ -40,6 +41,13 @@ int synth_command(const Arguments& args) {
     const double value = std::strtod(e.c_str(), &end);
     if (*end != '\0' || !(value > 0)) throw InputError("--epsilon", "'" + e + "' is not a number > 0");
   }
+  // Each case holds a few dense agents x partners matrices at once (gains,
+  // coupling, allocation, the price rule's state): refuse what cannot fit.
+  require_memory(dense_matrix_bytes(static_cast<double>(benchmark.agents),
+                                    static_cast<double>(benchmark.partners), 8),
+                 "a case of " + std::to_string(benchmark.agents) + " x " +
+                     std::to_string(benchmark.partners) + " cells",
+                 "--agents", "use fewer agents or partners");
   const std::string folder = vm["out-dir"].as<std::string>();
   const long cases = write_benchmark_set(folder, benchmark);
   std::cout << "wrote " << cases << " cases to " << folder << ": inputs/<case>/ and inputs.h5 "

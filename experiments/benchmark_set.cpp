@@ -1,5 +1,7 @@
 #include "allocsim/experiments/benchmark_set.hpp"
 
+#include <cerrno>
+#include <cstring>
 #include <H5Cpp.h>
 
 #include <algorithm>
@@ -13,6 +15,7 @@
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/engine.hpp"
@@ -175,20 +178,18 @@ void BenchmarkOptions::validate() const {
     throw InputError("--source", "'" + source + "' is not one of model, price");
 }
 
-long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions& options) {
-  options.validate();
-  const fs::path folder = folder_name;
-  if (fs::exists(folder) && !fs::is_empty(folder)) {
-    throw InputError(folder_name, "exists and is not empty; give a new folder");
-  }
-  fs::create_directories(folder);
+namespace {
+
+// Writes the set into an existing empty folder (see write_benchmark_set).
+long write_set_files(const fs::path& folder, const BenchmarkOptions& options) {
   // Inputs first, truth last: a set without truth.csv is unfinished.
   const std::string h5_path = (folder / "inputs.h5").string();
   const std::string h5_temporary = temporary_name_for(h5_path);
   std::ostringstream truth;
   truth << "case,family,source,true_epsilon,units,agents,partners\n";
   long k = 0;
-  {
+  try {
+    errno = 0;
     H5::H5File h5(h5_temporary, H5F_ACC_TRUNC);
     set_text_attribute(h5, "format", "allocsim-benchmark-inputs");
     h5.createGroup("cases");
@@ -210,12 +211,41 @@ long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions&
         }
       }
     }
+    h5.close();
+  } catch (const H5::Exception& e) {
+    const int error = errno;
+    throw WriteError(h5_path, write_failure_cause(h5_path, "HDF5 error: " + e.getDetailMsg(), error));
   }
   fs::rename(h5_temporary, h5_path);
   AtomicFile truth_file((folder / "truth.csv").string());
   truth_file.stream() << truth.str();
   truth_file.commit();
   return k;
+}
+
+}  // namespace
+
+long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions& options) {
+  options.validate();
+  const fs::path folder = folder_name;
+  std::error_code error;
+  const bool existed = fs::exists(folder, error);
+  if (existed && !fs::is_directory(folder, error)) {
+    throw InputError(folder_name, "exists and is not a folder; give a new folder");
+  }
+  if (existed && !fs::is_empty(folder, error)) {
+    throw InputError(folder_name, "exists and is not empty; give a new folder");
+  }
+  fs::create_directories(folder, error);
+  if (error) throw InputError(folder_name, "cannot be created (" + error.message() + ")");
+  try {
+    return write_set_files(folder, options);
+  } catch (...) {
+    // Nothing of an unfinished set is left: the folder was new or empty.
+    for (const auto& entry : fs::directory_iterator(folder, error)) fs::remove_all(entry.path(), error);
+    if (!existed) fs::remove(folder, error);
+    throw;
+  }
 }
 
 ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
