@@ -1,6 +1,5 @@
 // allocsim run: every run of an experiment file's sweep, in parallel,
 // resumable, and over MPI ranks when launched by mpirun.
-#include <H5Cpp.h>
 #include <unistd.h>
 
 #include <atomic>
@@ -13,6 +12,7 @@
 #include <thread>
 
 #include "allocsim/core/atomic_file.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
@@ -178,7 +178,7 @@ int run_command(const Arguments& args) {
   }
   if (!vm.count("experiment")) throw InputError("allocsim run", "name an experiment file (see --help)");
   const int threads = checked_threads(vm);
-  H5::Exception::dontPrint();
+  silence_hdf5_diagnostics();
   MpiSession mpi;
   const std::string experiment = vm["experiment"].as<std::string>();
   const SweepPlan plan = plan_sweep(experiment, experiment_values_given(vm), sweep_overrides(vm));

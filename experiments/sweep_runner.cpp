@@ -24,7 +24,7 @@
 #include "allocsim/results/results_reader.hpp"
 #include "allocsim/results/run_store.hpp"
 #include "allocsim/experiments/simulation.hpp"
-#include "allocsim/results/hdf5_io.hpp"
+#include "allocsim/results/layout.hpp"
 
 namespace allocsim {
 namespace {
@@ -182,7 +182,7 @@ std::string finished_file_difference(const SweepPlan& plan, const ResultsReader&
       if (!same) return run + ": " + key.name + " is " + (there.empty() ? "(none)" : there) +
                         " there, " + now + " now";
     }
-    const auto replicate = attribute_number(stored, "replicate");
+    const auto replicate = attribute_number(stored, layout::kReplicate);
     if (!replicate || *replicate != static_cast<double>(plan.points[static_cast<std::size_t>(k)].replicate)) {
       return run + ": another replicate";
     }
@@ -246,12 +246,13 @@ void play_run(const SweepPlan& plan, const RunStore& store, long k,
     ResultsFile part(path, plan.experiment_text, tool_version);
     const std::string run = run_name(k);
     record_run(part, run, static_cast<std::uint64_t>(k), values, settings, nullptr);
-    H5::Group group = part.file().openGroup("runs/" + run);
-    set_integer_attribute(group, "replicate", plan.points[static_cast<std::size_t>(k)].replicate);
+    part.run(run).set_integer(layout::kReplicate, plan.points[static_cast<std::size_t>(k)].replicate);
     part.commit();
-  } catch (const H5::Exception& e) {
+  } catch (const std::exception&) {
+    throw;
+  } catch (...) {  // the results layer's own (HDF5) failure: a write that failed
     const int error = errno;
-    throw WriteError(path, hdf5_write_cause(path, e.getFuncName() + ": " + e.getDetailMsg(), error));
+    throw WriteError(path, hdf5_write_cause(path, "the results layer failed", error));
   }
 }
 
@@ -292,15 +293,17 @@ SummaryTable merge_parts(const SweepPlan& plan, const RunStore& store, long runs
   try {
     errno = 0;
     return store.merge(runs, plan.experiment_text, tool_version, plan.swept_keys);
-  } catch (const H5::Exception& e) {
-    const int error = errno;
-    throw WriteError(plan.output_file,
-                     hdf5_write_cause(plan.output_file, e.getFuncName() + ": " + e.getDetailMsg(), error) +
-                         " (the finished runs are kept in " + store.folder() + ")");
-  } catch (const InputError& e) {
+  } catch (const WriteError&) {
+    throw;
+  } catch (const std::exception& e) {
     const int error = errno;
     throw WriteError(plan.output_file, hdf5_write_cause(plan.output_file, e.what(), error) +
                                            " (the finished runs are kept in " + store.folder() + ")");
+  } catch (...) {
+    const int error = errno;
+    throw WriteError(plan.output_file,
+                     hdf5_write_cause(plan.output_file, "the results layer failed", error) +
+                         " (the finished runs are kept in " + store.folder() + ")");
   }
 }
 
@@ -326,11 +329,11 @@ bool finished_already(const SweepPlan& plan, bool restart, SummaryTable& summary
                          (restart ? "--restart only replaces files allocsim wrote; " : "") +
                          "remove it or choose another output.file");
   }
-  const auto version = attribute_number(reader->root_attributes(), "format_version");
-  if (version && *version > static_cast<double>(kResultsFormatVersion)) {
-    throw InputError(plan.output_file, "has format_version " + attribute_text(reader->root_attributes(), "format_version") +
+  const auto version = attribute_number(reader->root_attributes(), layout::kFormatVersion);
+  if (version && *version > static_cast<double>(layout::kResultsFormatVersion)) {
+    throw InputError(plan.output_file, "is of results format version " + attribute_text(reader->root_attributes(), layout::kFormatVersion) +
                                            ", newer than this allocsim writes (" +
-                                           std::to_string(kResultsFormatVersion) +
+                                           std::to_string(layout::kResultsFormatVersion) +
                                            "); use a newer allocsim or choose another output.file");
   }
   if (restart) return false;

@@ -326,7 +326,7 @@ for command in ("inspect", "analyze", "plot"):
         def run(t):
             newer_file(t, 99)
             r = t.allocsim(command, "res.h5", *(["--out-dir", "fig"] if command == "plot" else []))
-            t.expect(r, 2, says=["res.h5", "format_version", "99"])
+            t.expect(r, 2, says=["res.h5", "format version", "99"])
             t.unchanged("res.h5")
             t.absent("fig")
         return run
@@ -337,7 +337,7 @@ for command in ("inspect", "analyze", "plot"):
 def _(t):
     newer_file(t, 2)
     r = t.allocsim("analyze", "res.h5", "--write")
-    t.expect(r, 2, says=["format_version"])
+    t.expect(r, 2, says=["format version"])
     t.unchanged("res.h5")
 
 
