@@ -117,7 +117,6 @@ JsonObject report_json(const SweepReport& report) {
   return json;
 }
 
-}  // namespace
 
 // --sweep.KEY options, one per experiment key.
 void add_sweep_options(po::options_description& options) {

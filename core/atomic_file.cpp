@@ -86,6 +86,8 @@ class AtomicFile::Buffer : public std::streambuf {
   std::vector<char> data_;
 };
 
+void remove_on_exit_signal(const std::string& path) { remember_temporary(path); }
+
 std::string temporary_name_for(const std::string& path) {
   std::string name = path + ".tmp-" + std::to_string(::getpid());
   remember_temporary(name);

@@ -16,6 +16,8 @@
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
+// atomic_file.cpp: a path removed by the SIGINT / SIGTERM handler.
+void remove_on_exit_signal(const std::string& path);
 namespace fs = std::filesystem;
 namespace {
 
@@ -103,8 +105,8 @@ bool same_file(const std::string& a, const std::string& b) {
   if (a.empty() || b.empty()) return false;
   std::error_code error;
   if (fs::exists(a, error) && fs::exists(b, error)) return fs::equivalent(a, b, error);
-  const fs::path ca = fs::weakly_canonical(follow_links(a), error);
-  const fs::path cb = fs::weakly_canonical(follow_links(b), error);
+  const fs::path ca = fs::weakly_canonical(fs::absolute(follow_links(a)), error);
+  const fs::path cb = fs::weakly_canonical(fs::absolute(follow_links(b)), error);
   return !error && ca == cb;
 }
 
@@ -185,6 +187,7 @@ OutputLock::OutputLock(const std::string& path) : lock_path_(follow_links(path) 
       std::strftime(since, sizeof since, "%Y-%m-%d %H:%M:%S", &local);
       const std::string text =
           "pid " + std::to_string(::getpid()) + ", since " + since + "\n";
+      remove_on_exit_signal(lock_path_);
       if (::ftruncate(fd_, 0) == 0) {
         [[maybe_unused]] const auto written = ::pwrite(fd_, text.data(), text.size(), 0);
       }

@@ -526,7 +526,7 @@ SweepReport run_sweep(const SweepPlan& plan, const SweepRequest& request) {
   SweepReport report;
   report.output_file = plan.output_file;
   report.total = static_cast<long>(plan.points.size());
-  RunStore store(plan.output_file);
+  RunStore store(resolve_output(plan.output_file).path);  // a symlink's target
   std::unique_ptr<OutputLock> lock;
   if (request.merge_here) {
     lock = std::make_unique<OutputLock>(plan.output_file);

@@ -419,7 +419,7 @@ def _(t):
 @case("outputs", "simulate --out an earlier results file replaces it")
 def _(t):
     results_file(t, "one.h5")
-    r = simulate(t, "one.h5", "--dynamics.rounds", "40")
+    r = t.allocsim("simulate", *[a if a != "30" else "40" for a in SIM], "--out", "one.h5")
     t.expect(r, 0)
     t.results("one.h5", runs=1, check=lambda f: t.check(
         f["runs/run-000000"].attrs["dynamics.rounds"] == 40, "not replaced"))

@@ -235,7 +235,7 @@ def _(t):
 
     def stored(f):
         text = f.attrs["experiment"]
-        return t.check(re.search(r"rounds\s*=\s*60", text) is not None,
+        return t.check(re.search(r"rounds\s*=\s*60|--dynamics.rounds 60", text) is not None,
                        "the experiment attribute does not say rounds = 60") and \
             t.check(rounds_of(f) == [60], f"rounds {rounds_of(f)}")
     t.results("out.h5", runs=RUNS, check=stored)

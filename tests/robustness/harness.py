@@ -83,8 +83,9 @@ def tree_state(path):
     if kind == "symlink":
         return (kind, os.readlink(path))
     if kind == "dir":
+        # Temporaries of killed writers may be cleaned; what was complete must stay.
         return (kind, tuple((name, tree_state(os.path.join(path, name)))
-                            for name in sorted(os.listdir(path))))
+                            for name in sorted(os.listdir(path)) if ".tmp-" not in name))
     return (kind,)
 
 
