@@ -278,19 +278,26 @@ class TransportNetwork {
     simplex_.emplace(graph_);  // copies the graph's structure, so only now
   }
 
-  // Costs are (largest gain - gain) >= 0: LEMON sizes its artificial arcs
-  // from the largest cost, and a constant shift does not move the optimum.
+  // Costs are (largest gain - gain) / scale >= 0: LEMON sizes its artificial
+  // arcs from the largest cost, and a constant shift or a positive factor
+  // does not move the optimum. The scale (the largest absolute gain) keeps
+  // the costs in [0, 2] for any finite gains, even +-1e308.
   bool run(const std::vector<Units>& supply, const std::vector<Units>& demand) {
     largest_gain_ = -std::numeric_limits<double>::infinity();
+    scale_ = 0;
     for (int i = 0; i < n_; ++i) {
       for (int k = cells_.row_start[i]; k < cells_.row_start[i + 1]; ++k) {
-        largest_gain_ = std::max(largest_gain_, problem_.gains(i, cells_.partner[k]));
+        const double gain = problem_.gains(i, cells_.partner[k]);
+        largest_gain_ = std::max(largest_gain_, gain);
+        scale_ = std::max(scale_, std::abs(gain));
       }
     }
+    if (!(scale_ > 0)) scale_ = 1;
     Graph::ArcMap<double> cost(graph_);
     for (int i = 0, a = 0; i < n_; ++i) {
       for (int k = cells_.row_start[i]; k < cells_.row_start[i + 1]; ++k, ++a) {
-        cost[graph_.arcFromId(a)] = largest_gain_ - problem_.gains(i, cells_.partner[k]);
+        cost[graph_.arcFromId(a)] =
+            largest_gain_ / scale_ - problem_.gains(i, cells_.partner[k]) / scale_;
       }
     }
     return solve_with(cost, supply, demand);
@@ -316,14 +323,14 @@ class TransportNetwork {
     return pi;
   }
 
-  // LEMON's optimum has (largest - gain_ij) + pi_i - pi_j >= 0, equality on
-  // the support; hence u_i = pi_i + largest, v_j = -pi_j.
+  // LEMON's optimum has (largest - gain_ij) / scale + pi_i - pi_j >= 0,
+  // equality on the support; hence u_i = scale pi_i + largest, v_j = -scale pi_j.
   void potentials(Vector& agent, Vector& partner) const {
     agent.resize(n_);
     partner.resize(m_);
     for (int i = 0; i < n_; ++i)
-      agent[i] = simplex_->potential(graph_.nodeFromId(i)) + largest_gain_;
-    for (int j = 0; j < m_; ++j) partner[j] = -simplex_->potential(graph_.nodeFromId(n_ + j));
+      agent[i] = scale_ * simplex_->potential(graph_.nodeFromId(i)) + largest_gain_;
+    for (int j = 0; j < m_; ++j) partner[j] = -scale_ * simplex_->potential(graph_.nodeFromId(n_ + j));
   }
 
  private:
@@ -346,6 +353,7 @@ class TransportNetwork {
   int n_, m_;
   Graph graph_;
   double largest_gain_ = 0;
+  double scale_ = 1;
   std::optional<Simplex> simplex_;
 };
 
@@ -450,7 +458,7 @@ std::string unshipped_masses(const TransportProblem& p, const Matrix& coupling, 
             list(partners);
   }
   return text + " lie below total/mass_units (" + format_mass(1.0 / units) +
-         " of the total mass) and were left unshipped; raise mass_units (at most 1e15)";
+         " of the total mass) and were left unshipped; raise mass_units (solve --mass-units, at most 1e15)";
 }
 
 ExactResult infeasible_result(const TransportProblem& p, std::string message) {

@@ -1,5 +1,6 @@
 // allocsim analyze: temperature, distance to the optimal couplings and
 // structure of an allocation, from CSV files or from the runs of a results file.
+#include <cerrno>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -10,6 +11,8 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/analysis/allocation_report.hpp"
 #include "allocsim/results/layout.hpp"
@@ -49,6 +52,10 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
     nulls.samples = vm["null-samples"].as<long>();
     nulls.seed = static_cast<std::uint64_t>(vm["null-seed"].as<long>());
     if (nulls.samples < 2) throw InputError("--null-samples", "must be at least 2");
+    // The ensemble keeps one value per sample and metric (NODF, WNODF).
+    require_memory(static_cast<double>(nulls.samples) * 2 * sizeof(double),
+                   "a null ensemble of " + std::to_string(nulls.samples) + " samples", "--null-samples",
+                   "use fewer samples");
     options.nulls = nulls;
   }
   return options;
@@ -113,10 +120,26 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
     }
   }
   if (vm.count("write")) {
-    // A copy beside the file takes the analysis; it replaces the file only when complete.
-    ResultsUpdate update(path);
-    for (std::size_t k = 0; k < runs.size(); ++k) update.run(runs[k]).write_report(reports[k]);
-    update.commit();
+    // A copy beside the file (a symlink's target) takes the analysis; it
+    // replaces the file only when complete.
+    const std::string target = require_regular_output(path, path).path;
+    const OutputLock lock(target);
+    remove_orphan_temporaries(target);
+    try {
+      errno = 0;
+      ResultsUpdate update(target);
+      for (std::size_t k = 0; k < runs.size(); ++k) update.run(runs[k]).write_report(reports[k]);
+      update.commit();
+    } catch (const WriteError&) {
+      throw;
+    } catch (const std::filesystem::filesystem_error& e) {
+      throw WriteError(path, e.code().message());
+    } catch (const std::exception&) {
+      throw;
+    } catch (...) {  // the results layer's own (HDF5) failure: a write that failed
+      const int error = errno;
+      throw WriteError(path, write_failure_cause(target, "the results layer failed", error));
+    }
     if (!vm.count("json"))
       std::cerr << "wrote the analysis of " << runs.size() << " run(s) into " << path << "\n";
   }

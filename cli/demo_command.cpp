@@ -128,6 +128,7 @@ int demo_command(const Arguments& args) {
        "worker threads");
   po::variables_map vm;
   if (!parse_or_help(args, options, {}, vm, "demo", "[--out-dir DIR] [--threads N]")) return kExitOk;
+  const int threads = checked_threads(vm);
   fs::path folder = vm["out-dir"].as<std::string>();
   // The default folder is taken: run again into allocsim-demo-2, -3, ...
   for (int k = 2; vm["out-dir"].defaulted() && fs::exists(folder) && !fs::is_empty(folder); ++k) {
@@ -149,7 +150,7 @@ int demo_command(const Arguments& args) {
                "temperatures, two runs each; every run is analysed\n";
   SweepPlan plan = plan_sweep(experiment, {{"output.file", results}});
   SweepRequest request;
-  request.threads = std::max(1, vm["threads"].as<int>());
+  request.threads = threads;
   request.tool_version = ALLOCSIM_VERSION;
   silence_hdf5_diagnostics();
   const SweepReport report = run_sweep(plan, request);

@@ -3,6 +3,7 @@
 #include <iostream>
 #include <string>
 
+#include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "commands.hpp"
 
@@ -22,6 +23,8 @@ void print_overview() {
 
 int main(int argc, char** argv) {
   using namespace allocsim::cli;
+  // Ctrl-C and SIGTERM end any command with 130 / 143, removing its temporary files.
+  allocsim::exit_cleanly_on_signals();
   if (argc < 2) {
     print_overview();
     return kExitUsage;

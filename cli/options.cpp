@@ -64,6 +64,15 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
   return vm;
 }
 
+int checked_threads(const po::variables_map& vm) {
+  const int threads = vm["threads"].as<int>();
+  if (threads < 1 || threads > kMaxThreads) {
+    throw InputError("--threads", std::to_string(threads) + " is not allowed: use at least 1 and at most " +
+                                      std::to_string(kMaxThreads) + " threads");
+  }
+  return threads;
+}
+
 std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm) {
   std::vector<std::pair<std::string, std::string>> given;
   for (const auto& key : experiment_keys()) {

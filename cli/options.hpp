@@ -31,6 +31,13 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
                                              const po::positional_options_description* positional,
                                              const std::string& command);
 
+// Most worker threads any command starts; more is refused (a typo such as
+// --threads 100000 would otherwise exhaust the process's threads).
+constexpr int kMaxThreads = 1024;
+
+// The value of --threads: InputError unless 1 <= N <= kMaxThreads.
+int checked_threads(const po::variables_map& vm);
+
 // The (key, value) pairs of the experiment keys given on the command line.
 std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm);
 

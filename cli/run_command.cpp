@@ -7,11 +7,14 @@
 #include <csignal>
 #include <cstdio>
 #include <iostream>
+#include <memory>
 #include <sstream>
 #include <thread>
 
+#include "allocsim/core/atomic_file.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/experiments/keys.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
@@ -23,11 +26,14 @@ namespace allocsim::cli {
 namespace {
 
 std::atomic<bool> stop_requested{false};
+std::atomic<int> stop_signal{0};
 
-// First Ctrl-C: finish the runs in flight, then stop. Second: stop at once
-// (the finished runs are kept either way).
-extern "C" void on_interrupt(int) {
-  if (stop_requested.exchange(true)) std::_Exit(130);
+// First Ctrl-C (or SIGTERM): finish the runs in flight, then stop with exit
+// 128 + the signal. Second: stop at once (the finished runs are kept either
+// way; temporary files are removed).
+extern "C" void on_interrupt(int signal_number) {
+  if (stop_requested.exchange(true)) remove_temporaries_and_exit(128 + signal_number);
+  stop_signal.store(signal_number);
   const char message[] =
       "\nallocsim run: stopping after the runs in flight (Ctrl-C again to stop at once)\n";
   [[maybe_unused]] const auto written = ::write(2, message, sizeof message - 1);
@@ -46,16 +52,19 @@ std::string format_duration(double seconds) {
   return out.str();
 }
 
-// A bar redrawn in place on a terminal; otherwise a plain line every 10% of
-// the runs or every 30 s.
-std::function<void(const SweepProgress&)> progress_printer(long already_done, long total) {
+// A bar redrawn in place on a terminal (each redraw clears the rest of its
+// line); otherwise a plain line every 10% of the runs or every 30 s. Counts
+// include the runs kept from an earlier start. `bar_open` tells whether the
+// bar's line still waits for its line end.
+std::function<void(const SweepProgress&)> progress_printer(std::shared_ptr<bool> bar_open) {
   const bool terminal = ::isatty(2);
   auto last_line = std::chrono::steady_clock::now();
   long last_tenth = 0;
   return [=](const SweepProgress& p) mutable {
     const double rate = p.seconds > 0 ? p.done / p.seconds : 0;
     const double left = rate > 0 ? (p.to_do - p.done) / rate : 0;
-    const long done = already_done + p.done;
+    const long total = p.already_done + p.to_do;
+    const long done = p.already_done + p.done;
     std::ostringstream line;
     line.precision(3);
     line << done << "/" << total << " runs, " << rate << " runs/s, " << format_duration(left)
@@ -63,8 +72,10 @@ std::function<void(const SweepProgress&)> progress_printer(long already_done, lo
     if (terminal) {
       constexpr int kWidth = 30;
       const int filled = static_cast<int>(kWidth * done / std::max(total, 1L));
-      std::cerr << "\r[" << std::string(filled, '#') << std::string(kWidth - filled, '.') << "] "
-                << line.str() << "   " << (p.done == p.to_do ? "\n" : "") << std::flush;
+      const bool last = p.done == p.to_do;
+      std::cerr << "\r\033[K[" << std::string(filled, '#') << std::string(kWidth - filled, '.')
+                << "] " << line.str() << (last ? "\n" : "") << std::flush;
+      *bar_open = !last;
       return;
     }
     const auto now = std::chrono::steady_clock::now();
@@ -80,15 +91,21 @@ std::function<void(const SweepProgress&)> progress_printer(long already_done, lo
 
 std::string usage() {
   return "usage: allocsim run EXP.ini [--threads N] [--restart] [--csv FILE] [--section.key VALUE ...]\n"
+         "                        [--sweep.section.key 'VALUES' ...] [--replicates N]\n"
          "       mpirun -np K allocsim run EXP.ini\n\n"
          "Runs every point of the experiment's [sweep] (one run without one) and writes\n"
          "one results file (output.file). Finished runs are kept as they complete in\n"
-         "<output.file>.parts/: after a crash or Ctrl-C, the same command finishes the rest.\n\n";
+         "<output.file>.parts/: after a crash or Ctrl-C, the same command finishes the rest.\n"
+         "A swept key cannot be given a single value: --sweep.KEY replaces its axis.\n"
+         "The same command over a finished file leaves it alone; another experiment is\n"
+         "refused unless --restart. Exit: 0 done, 1 runs failed or a write failed,\n"
+         "2 unusable input, 130 Ctrl-C, 143 SIGTERM.\n\n";
 }
 
 JsonObject report_json(const SweepReport& report) {
   JsonObject json;
-  json.add("status", report.complete      ? "complete"
+  json.add("status", report.left_alone    ? "already complete"
+                     : report.complete      ? "complete"
                      : report.interrupted ? "interrupted"
                      : report.failures.empty() ? "partial" : "failed")
       .add("file", report.output_file)
@@ -100,6 +117,36 @@ JsonObject report_json(const SweepReport& report) {
   return json;
 }
 
+
+// --sweep.KEY options, one per experiment key.
+void add_sweep_options(po::options_description& options) {
+  for (const auto& key : experiment_keys()) {
+    if (key.name == "output.file") continue;
+    options.add_options()(("sweep." + key.name).c_str(), po::value<std::string>(),
+                          ("replace (or add) the sweep axis of " + key.name).c_str());
+  }
+}
+
+SweepOverrides sweep_overrides(const po::variables_map& vm) {
+  SweepOverrides overrides;
+  for (const auto& key : experiment_keys()) {
+    const std::string option = "sweep." + key.name;
+    if (vm.count(option)) overrides.axes.emplace_back(key.name, vm[option].as<std::string>());
+  }
+  if (vm.count("replicates")) {
+    const long replicates = vm["replicates"].as<long>();
+    if (replicates < 1) throw InputError("--replicates", std::to_string(replicates) + " is not a whole number >= 1");
+    overrides.replicates = replicates;
+  }
+  return overrides;
+}
+
+int exit_code(const SweepReport& report) {
+  if (report.complete) return kExitOk;
+  if (report.interrupted && stop_signal.load()) return 128 + stop_signal.load();
+  return kExitProblem;
+}
+
 }  // namespace
 
 int run_command(const Arguments& args) {
@@ -107,14 +154,16 @@ int run_command(const Arguments& args) {
   options.add_options()
       ("experiment", po::value<std::string>(), "experiment file (INI)")
       ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
-       "worker threads (results do not depend on it)")
-      ("restart", "discard the kept runs of an unfinished sweep of another experiment")
+       "worker threads (results do not depend on it; at most 1024)")
+      ("restart", "discard the kept runs or the finished file of another experiment (only files allocsim wrote)")
       ("csv", po::value<std::string>(), "also write the summary table to this CSV file")
+      ("replicates", po::value<long>(), "runs per sweep point (replaces the file's sweep.replicates)")
       ("list-keys", "list every experiment key with its default and valid values")
       ("quiet", "no progress on stderr")
       ("json", "print one JSON object on stdout")
       ("help,h", "show this help");
   add_experiment_key_options(options);
+  add_sweep_options(options);
   po::positional_options_description positional;
   positional.add("experiment", 1);
   const po::variables_map vm = parse_with_experiment_keys(args, options, &positional, "run");
@@ -127,34 +176,44 @@ int run_command(const Arguments& args) {
     return kExitOk;
   }
   if (!vm.count("experiment")) throw InputError("allocsim run", "name an experiment file (see --help)");
+  const int threads = checked_threads(vm);
   silence_hdf5_diagnostics();
   MpiSession mpi;
-  const SweepPlan plan = plan_sweep(vm["experiment"].as<std::string>(), experiment_values_given(vm));
+  const std::string experiment = vm["experiment"].as<std::string>();
+  const SweepPlan plan = plan_sweep(experiment, experiment_values_given(vm), sweep_overrides(vm));
+  require_sweep_memory(plan, threads);
+  if (vm.count("csv")) {
+    const std::string csv = vm["csv"].as<std::string>();
+    std::vector<std::pair<std::string, std::string>> others = plan.inputs;
+    others.emplace_back("output.file (the results file)", plan.output_file);
+    require_distinct(csv, "--csv", others);
+    const ResolvedOutput target = resolve_output(csv);
+    if (target.kind == OutputKind::directory) throw InputError("--csv", csv + " is a directory; name a CSV file");
+  }
 
   SweepRequest request;
-  request.threads = vm["threads"].as<int>();
-  if (request.threads < 1) throw InputError("--threads", "must be at least 1");
+  request.threads = threads;
   request.restart = vm.count("restart") > 0;
   request.tool_version = ALLOCSIM_VERSION;
   request.stop = &stop_requested;
   mpi.configure(request);
-  if (!vm.count("quiet") && mpi.rank() == 0) {
-    request.progress = progress_printer(0, static_cast<long>(plan.points.size()));
-  }
+  const auto bar_open = std::make_shared<bool>(false);
+  if (!vm.count("quiet") && mpi.rank() == 0) request.progress = progress_printer(bar_open);
   std::signal(SIGINT, on_interrupt);
   std::signal(SIGTERM, on_interrupt);
   const SweepReport report = run_sweep(plan, request);
-  std::signal(SIGINT, SIG_DFL);
-  std::signal(SIGTERM, SIG_DFL);
+  exit_cleanly_on_signals();
+  if (*bar_open) std::cerr << "\n";
   if (mpi.rank() != 0) return report.failures.empty() ? kExitOk : kExitProblem;
 
   if (report.complete && vm.count("csv")) write_summary_csv(vm["csv"].as<std::string>(), report.summary);
   if (vm.count("json")) {
-    std::cout << report_json(report).str() << "\n";
+    JsonObject json = report_json(report);
+    std::cout << json.str() << "\n";
   } else {
-    (report.complete ? std::cout : std::cerr) << "allocsim run: " << report.brief() << "\n";
+    (report.complete && !report.left_alone ? std::cout : std::cerr) << "allocsim run: " << report.brief() << "\n";
   }
-  return report.complete ? kExitOk : kExitProblem;
+  return exit_code(report);
 }
 
 }  // namespace allocsim::cli

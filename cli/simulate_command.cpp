@@ -94,8 +94,8 @@ int simulate_command(const Arguments& args) {
   require_simulation_memory(values);
 
   SimulationRequest request;
-  request.threads = vm["threads"].as<int>();
-  if (request.threads < 1) throw InputError("--threads", "must be at least 1");
+  request.threads = checked_threads(vm);
+  if (!config.empty()) request.inputs.emplace_back("--config", config);
   request.tool_version = ALLOCSIM_VERSION;
   if (!vm.count("quiet")) request.progress = stderr_progress();
   silence_hdf5_diagnostics();

@@ -1,6 +1,7 @@
 // allocsim solve: exact or entropic transport from CSV files.
 #include <iostream>
 #include <algorithm>
+#include <cmath>
 #include <limits>
 #include <thread>
 #include <optional>
@@ -11,6 +12,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/memory_limit.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -85,11 +87,19 @@ struct SolveReport {
   Matrix coupling;
   JsonObject json;
   std::string brief;
+  double total_gain = 0;
 };
 
-SolveReport solve_exactly(const TransportProblem& problem) {
-  const ExactResult r = solve_exact(problem);
-  SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {}, r.brief()};
+SolveReport solve_exactly(const TransportProblem& problem, double mass_units) {
+  ExactOptions options;
+  options.mass_units = mass_units;
+  try {
+    options.validate();
+  } catch (const InputError& e) {
+    throw InputError("--mass-units", std::string(e.what()).substr(e.where().size() + 2));
+  }
+  const ExactResult r = solve_exact(problem, options);
+  SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {}, r.brief(), r.total_gain};
   report.json.add("status", report.status).add("method", "exact").add("total_gain", r.total_gain)
       .add("iterations", 0).add("marginal_error", r.marginal_error)
       .add("support_size", static_cast<long long>(r.support_size)).add("is_forest", r.support_is_forest)
@@ -99,7 +109,7 @@ SolveReport solve_exactly(const TransportProblem& problem) {
 
 SolveReport solve_entropically(const TransportProblem& problem, const EntropicOptions& options) {
   const EntropicResult r = solve_entropic(problem, options);
-  SolveReport report{to_string(r.status), r.converged(), r.message, r.coupling, {}, r.brief()};
+  SolveReport report{to_string(r.status), r.converged(), r.message, r.coupling, {}, r.brief(), r.total_gain};
   const long long support = r.coupling.size() ? (r.coupling.array() > 0).count() : 0;
   report.json.add("status", report.status).add("method", "entropic").add("total_gain", r.total_gain)
       .add("iterations", static_cast<long long>(r.iterations)).add("marginal_error", r.marginal_error)
@@ -127,7 +137,7 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
   }
   options.tolerance = vm["tolerance"].as<double>();
   options.max_iterations = vm["max-iterations"].as<long>();
-  options.threads = vm["threads"].as<int>();
+  options.threads = checked_threads(vm);
   try {
     options.validate();
   } catch (const InputError& e) {
@@ -152,6 +162,8 @@ int solve_command(const Arguments& args) {
       ("max-iterations", po::value<long>()->default_value(100000), "entropic: Sinkhorn iteration limit")
       ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
        "entropic: threads sharing each iteration")
+      ("mass-units", po::value<double>()->default_value(1e12, "1e12"),
+       "exact: integer units of the total mass (resolution of the marginals), in [1e3, 1e15]")
       ("rescale", "scale the capacities so their total equals the budgets' total")
       ("out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")
       ("json", "print one JSON object on stdout instead of the summary line");
@@ -165,11 +177,26 @@ int solve_command(const Arguments& args) {
   if (method != "exact" && method != "entropic") {
     throw InputError("--method", "'" + method + "' is not one of exact, entropic");
   }
+  const int threads = checked_threads(vm);
+  (void)threads;
   const SolveInputs in = read_inputs(vm);
+  if (vm.count("out") && vm["out"].as<std::string>() != "-") {
+    const std::string out = vm["out"].as<std::string>();
+    std::vector<std::pair<std::string, std::string>> inputs = {
+        {"--gains", in.sources.gains}, {"--budgets", in.sources.budgets},
+        {"--capacities", in.sources.capacities}};
+    if (vm.count("access")) inputs.emplace_back("--access", in.sources.access);
+    require_distinct(out, "--out", inputs);
+  }
   require_solve_memory(in, method);
   const SolveReport report = method == "exact"
-                                 ? solve_exactly(in.problem)
+                                 ? solve_exactly(in.problem, vm["mass-units"].as<double>())
                                  : solve_entropically(in.problem, entropic_options(vm, in.problem));
+  if (report.ok && !std::isfinite(report.total_gain)) {
+    throw InputError(in.sources.gains, "the total gain exceeds the largest number a double holds "
+                                       "(about 1.8e308); divide the gains or the masses by a "
+                                       "constant (the optimal coupling does not change)");
+  }
   const bool coupling_to_stdout = vm.count("out") && vm["out"].as<std::string>() == "-";
   if (vm.count("json")) {
     JsonObject json = report.json;

@@ -4,6 +4,7 @@
 allocsim_layer(core
   SOURCES
     core/atomic_file.cpp
+    core/output_file.cpp
     core/csv.cpp
     core/csv_text.cpp
     core/csv_write.cpp

@@ -5,6 +5,7 @@
 #include <cerrno>
 #include <cmath>
 #include <cstdlib>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -362,11 +363,18 @@ void add_sweep_line(SweepSection& sweep, const std::string& key, const std::stri
 }
 
 void read_experiment_file(const std::string& path, ExperimentValues& values, SweepSection* sweep) {
+  std::error_code error;
+  if (std::filesystem::is_directory(path, error)) {
+    throw InputError(path, "is a directory, not an experiment file");
+  }
   std::ifstream in(path);
   if (!in) throw InputError(path, "cannot be read (does the file exist?)");
   std::stringstream buffer;
   buffer << in.rdbuf();
-  const std::string text = buffer.str();
+  if (in.bad()) throw InputError(path, "cannot be read");
+  std::string text = buffer.str();
+  // A UTF-8 byte-order mark (as some editors write) is not part of the first line.
+  if (text.rfind("\xEF\xBB\xBF", 0) == 0) text.erase(0, 3);
   const IniLines lines = locate_ini_lines(text);
 
   po::options_description known;

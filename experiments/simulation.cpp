@@ -1,12 +1,20 @@
 #include "allocsim/experiments/simulation.hpp"
 
+#include <sys/statvfs.h>
+
+#include <cerrno>
+#include <cstring>
+#include <filesystem>
 #include <sstream>
 
 #include "allocsim/analysis/allocation_report.hpp"
 #include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/experiments/analysis_settings.hpp"
 #include "allocsim/results/layout.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {
@@ -29,6 +37,12 @@ SummaryTable one_row_summary(const std::string& run, const ExperimentValues& val
 }
 
 }  // namespace
+
+double simulation_memory_bytes(const ExperimentValues& values) {
+  constexpr double kSimulationMatrices = 8;
+  return dense_matrix_bytes(values.real("scenario.agents"), values.real("scenario.partners"),
+                            kSimulationMatrices);
+}
 
 std::string SimulationReport::brief() const {
   std::ostringstream out;
@@ -83,11 +97,36 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
   return result;
 }
 
+namespace {
+
+// An existing output must be a results file allocsim wrote.
+void require_results_or_nothing(const std::string& path, const std::string& where) {
+  if (!std::filesystem::exists(path)) return;
+  try {
+    ResultsReader existing(path);
+  } catch (const InputError&) {
+    throw InputError(where, path + " exists and was not written by allocsim (no allocsim format "
+                                   "attribute); remove it or choose another output");
+  }
+}
+
+}  // namespace
+
 SimulationReport simulate_to_file(const ExperimentValues& values,
                                   const SimulationRequest& request) {
   SimulationSettings settings = simulation_settings(values);
   settings.dynamics.threads = request.threads;
   settings.dynamics.validate();
+  const std::string where = values.where("output.file") == "--output.file"
+                                ? std::string("--out")
+                                : values.where("output.file") + ": output.file";
+  const ResolvedOutput output = require_regular_output(settings.output_file, where);
+  std::vector<std::pair<std::string, std::string>> inputs = request.inputs;
+  if (settings.scenario.gains == GainsKind::file) inputs.emplace_back("scenario.gains_file", settings.scenario.gains_file);
+  if (settings.scenario.budgets == MassKind::file) inputs.emplace_back("scenario.budgets_file", settings.scenario.budgets_file);
+  if (settings.scenario.capacities == MassKind::file) inputs.emplace_back("scenario.capacities_file", settings.scenario.capacities_file);
+  if (settings.scenario.access == AccessKind::file) inputs.emplace_back("scenario.access_file", settings.scenario.access_file);
+  require_distinct(settings.output_file, where, inputs);
   // Build the scenario once before creating the file, so bad input (files,
   // shapes, access) fails without leaving anything behind.
   const TransportProblem check = make_scenario(settings.scenario, 0);
@@ -98,10 +137,22 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
   report.agents = check.agents();
   report.partners = check.partners();
   report.infeasibility = explain_infeasibility(check);
-  ResultsFile file(report.output_file, values.to_ini(), request.tool_version);
-  report.result = record_run(file, report.run, 0, values, settings, request.progress);
-  file.write_summary(one_row_summary(report.run, values, report.result));
-  file.commit();
+  const OutputLock lock(settings.output_file);
+  remove_orphan_temporaries(settings.output_file);
+  require_results_or_nothing(output.path, where);
+  try {
+    errno = 0;
+    ResultsFile file(output.path, values.to_ini(), request.tool_version);
+    report.result = record_run(file, report.run, 0, values, settings, request.progress);
+    file.write_summary(one_row_summary(report.run, values, report.result));
+    file.commit();
+  } catch (const std::exception&) {
+    throw;
+  } catch (...) {  // the results layer's own (HDF5) failure: a write that failed
+    const int error = errno;
+    throw WriteError(report.output_file,
+                     write_failure_cause(output.path, "the results layer failed", error));
+  }
   return report;
 }
 

@@ -1,5 +1,6 @@
 #include "figure_script.hpp"
 
+#include <fstream>
 #include <spawn.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
@@ -14,6 +15,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "plot_style_text.hpp"  // kPlotStyle: plots/style.gp, embedded at build time
 
 extern char** environ;
@@ -125,6 +127,24 @@ std::string padded_range(const char* axis, const std::vector<double>& values, bo
   return std::string("set ") + axis + "range [" + number(low) + ":" + number(high) + "]\n";
 }
 
+// A PNG ends with its IEND chunk, an SVG with </svg>, a PDF with %%EOF: an
+// image cut short (a full disk) lacks its end.
+static bool image_is_complete(const std::string& path, ImageFormat format) {
+  std::ifstream in(path, std::ios::binary);
+  in.seekg(0, std::ios::end);
+  const std::streamoff size = in.tellg();
+  const std::streamoff tail_size = std::min<std::streamoff>(size, 64);
+  std::string tail(static_cast<std::size_t>(tail_size), '\0');
+  in.seekg(size - tail_size);
+  in.read(tail.data(), tail_size);
+  switch (format) {
+    case ImageFormat::png: return tail.find("IEND") != std::string::npos;
+    case ImageFormat::svg: return tail.find("</svg>") != std::string::npos;
+    case ImageFormat::pdf: return tail.find("%%EOF") != std::string::npos;
+  }
+  return true;
+}
+
 FigureScript::FigureScript(const std::string& stem, const FigureOptions& options,
                            int default_width, int default_height)
     : options_(options),
@@ -165,7 +185,7 @@ std::string FigureScript::finish() {
   *gp_ << "unset multiplot\nunset output\n";
   const bool written = static_cast<bool>(*gp_);
   gp_.reset();  // flushes and closes the script
-  if (!written) throw InputError(script_path_, "could not be written completely");
+  if (!written) throw WriteError(script_path_, write_failure_cause(script_path_, "the script is incomplete", errno));
   if (options_.script_only) {
     if (std::rename(script_temporary_.c_str(), script_path_.c_str()) != 0) {
       throw InputError(script_path_, std::string("could not be written (") + std::strerror(errno) + ")");
@@ -182,8 +202,10 @@ std::string FigureScript::finish() {
                                                    std::to_string(status) +
                                                    "; its messages are above)");
   }
-  if (file_size(image_temporary_) <= 0) {
-    throw InputError(image_path_, "gnuplot wrote no image");
+  if (file_size(image_temporary_) <= 0 || !image_is_complete(image_temporary_, options_.format)) {
+    const int error = errno;
+    std::remove(image_temporary_.c_str());
+    throw WriteError(image_path_, write_failure_cause(image_path_, "gnuplot wrote no complete image", error));
   }
   if (std::rename(image_temporary_.c_str(), image_path_.c_str()) != 0) {
     throw InputError(image_path_, std::string("could not be written (") + std::strerror(errno) + ")");

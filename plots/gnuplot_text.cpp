@@ -33,6 +33,15 @@ std::string quote_gnuplot_text(const std::string& text) {
   return "'" + escape_gnuplot_text(text) + "'";
 }
 
+std::string quote_gnuplot_tic_label(const std::string& text) {
+  std::string doubled;
+  for (const char c : text) {
+    doubled += c;
+    if (c == '%') doubled += '%';
+  }
+  return quote_gnuplot_text(doubled);
+}
+
 std::string to_string(ImageFormat format) {
   switch (format) {
     case ImageFormat::png: return "png";

@@ -96,7 +96,7 @@ std::string tick_command(const char* axis, const std::vector<std::string>& label
   if (!named(labels, order)) return command + " autofreq format '%g'\n";
   command += std::string(axis) == "x" ? " rotate by 60 right font ',9' (" : " font ',9' (";
   for (std::size_t k = 0; k < order.size(); ++k) {
-    command += (k ? ", " : "") + quote_gnuplot_text(shortened(labels[static_cast<std::size_t>(order[k])], kTickLabelChars)) + " " +
+    command += (k ? ", " : "") + quote_gnuplot_tic_label(shortened(labels[static_cast<std::size_t>(order[k])], kTickLabelChars)) + " " +
                std::to_string(k + 1);
   }
   return command + ")\n";

@@ -19,6 +19,20 @@ namespace {
 
 constexpr const char* kExperimentCopy = "experiment.ini";
 
+// Removes what a run store writes in its folder (run parts, the experiment
+// copy, their temporaries), then the folder when nothing else is left in it:
+// a file someone else put there is never removed.
+void remove_own_files(const std::string& folder) {
+  std::error_code error;
+  for (const auto& entry : fs::directory_iterator(folder, error)) {
+    const std::string name = entry.path().filename().string();
+    const bool own = name.rfind(kExperimentCopy, 0) == 0 ||
+                     (name.rfind("run-", 0) == 0 && name.find(".h5") != std::string::npos);
+    if (own) fs::remove(entry.path(), error);
+  }
+  if (fs::is_empty(folder, error)) fs::remove(folder, error);
+}
+
 std::string read_text(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   std::stringstream buffer;
@@ -90,7 +104,7 @@ RunStore::RunStore(std::string results_path)
 
 void RunStore::open(const std::string& experiment_text, bool restart) {
   const std::string copy = (fs::path(folder_) / kExperimentCopy).string();
-  if (fs::exists(folder_) && restart) fs::remove_all(folder_);
+  if (fs::exists(folder_) && restart) remove_own_files(folder_);
   if (fs::exists(copy)) {
     if (read_text(copy) != experiment_text) {
       throw InputError(results_path_,
@@ -145,7 +159,7 @@ SummaryTable RunStore::merge(long runs, const std::string& experiment_text,
   SummaryTable table = summary.table();
   results.write_summary(table);
   results.commit();
-  fs::remove_all(folder_);
+  remove_own_files(folder_);
   return table;
 }
 

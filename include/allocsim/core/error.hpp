@@ -25,6 +25,16 @@ class InputError : public std::runtime_error {
   std::string where_;
 };
 
+// A file could not be written (disk full, I/O error, permission lost
+// midway): the command line prints it as one line and exits 1. The message
+// names the file and the cause ("out.h5: could not be written: No space left
+// on device").
+class WriteError : public std::runtime_error {
+ public:
+  WriteError(const std::string& file, const std::string& cause)
+      : std::runtime_error(file + ": could not be written: " + cause) {}
+};
+
 // "file:line" (line counted from 1), or just "file" when line is 0.
 inline std::string location(const std::string& file, long line = 0) {
   return line > 0 ? file + ":" + std::to_string(line) : file;

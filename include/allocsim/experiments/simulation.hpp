@@ -5,6 +5,8 @@
 
 #include <cstdint>
 #include <string>
+#include <utility>
+#include <vector>
 
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
@@ -17,6 +19,9 @@ struct SimulationRequest {
   int threads = 1;                 // worker threads; results are identical for any count
   std::string tool_version = "";   // stored as the tool_version attribute
   ProgressCallback progress;       // may be empty
+  // Files read besides the data files of the values, (label, path): the
+  // output may not be one of them (e.g. {"--config", "exp.ini"}).
+  std::vector<std::pair<std::string, std::string>> inputs;
 };
 
 struct SimulationReport {
@@ -31,6 +36,11 @@ struct SimulationReport {
   // One line for the command line.
   std::string brief() const;
 };
+
+// Bytes one run of these values holds at once (an estimate: about 8 dense
+// agents x partners matrices of doubles: gains twice, rule state, window and
+// cumulative counts, the feasibility check's network).
+double simulation_memory_bytes(const ExperimentValues& values);
 
 // Every key as an attribute of the run group: numbers as float64 (int64 for
 // whole-number keys), words, paths and truth values as text; plus seed and

@@ -21,24 +21,49 @@
 
 namespace allocsim {
 
+// Changes to the file's [sweep] from the command line: --sweep.KEY VALUES
+// replaces (or adds) an axis, --replicates N the replicate count.
+struct SweepOverrides {
+  std::vector<std::pair<std::string, std::string>> axes;  // (key, specification)
+  long replicates = 0;                                    // 0: as the file says
+};
+
 // The experiment, checked in full before any run starts.
+//
+// Its identity is the effective experiment: every key after defaults, file
+// and command line (numbers normalised, so "1e3" equals "1000"), the
+// expanded axes, combine and replicates, and the content of every data file
+// the runs read. A resume or a rerun over a finished file is accepted only
+// for the same identity; comments, spacing and key order do not matter.
 struct SweepPlan {
-  std::string experiment_text;     // the file as given (stored in the results)
+  std::string experiment_text;     // the file as given, then the command-line values (stored in the results)
   ExperimentValues base;           // the values without the sweep
   SweepSection sweep;
   std::vector<SweepPoint> points;  // run k = points[k]
   std::vector<std::string> swept_keys;
-  std::string output_file;
+  std::string output_file;         // as given (messages)
+  std::string identity;            // the effective experiment, one "key = value" per line
+  // Files the runs read, (label, path): the experiment and every data file.
+  std::vector<std::pair<std::string, std::string>> inputs;
 
   // The values of run k: the base with that point's axis values applied.
   ExperimentValues run_values(long k) const;
 };
 
-// Reads and checks the experiment (every point's settings), with
-// command-line values (key, text) applied over the file's. Throws InputError
-// naming file, line and key.
+// Reads and checks the experiment, with command-line values (key, text)
+// applied over the file's and the sweep overrides applied to its [sweep]:
+// every point's settings, every data file (read and checked like a run would,
+// the message naming the INI line of its key), the output (a regular file or
+// none, not one of the inputs). Throws InputError naming file, line and key;
+// a command-line value of a swept key is an error that points to --sweep.KEY.
 SweepPlan plan_sweep(const std::string& path,
-                     const std::vector<std::pair<std::string, std::string>>& command_line);
+                     const std::vector<std::pair<std::string, std::string>>& command_line,
+                     const SweepOverrides& overrides = {});
+
+// Refuses (InputError naming the largest point's key) a sweep whose runs in
+// flight on `threads` threads cannot fit in memory; the estimate is in the
+// message.
+void require_sweep_memory(const SweepPlan& plan, int threads);
 
 // Hands out run numbers to workers; one per process (threads share it).
 class RunDistributor {
@@ -54,12 +79,15 @@ std::unique_ptr<RunDistributor> local_distributor(long count);
 struct SweepProgress {
   long done = 0;       // runs finished in this invocation
   long to_do = 0;      // runs this invocation set out to do
+  long already_done = 0;  // runs kept from an earlier invocation (to_do + already_done = all)
   double seconds = 0;  // since the start
 };
 
 struct SweepRequest {
   int threads = 1;                  // worker threads in this process; >= 1
-  bool restart = false;             // discard an unfinished sweep of another experiment
+  // Discard an unfinished sweep or a finished file of another experiment (only
+  // files allocsim wrote: a results file by its format attribute, run parts).
+  bool restart = false;
   std::string tool_version;
   std::function<void(const SweepProgress&)> progress;  // called after each run (serialised)
   const std::atomic<bool>* stop = nullptr;             // set to stop taking new runs
@@ -78,7 +106,8 @@ struct SweepReport {
   long ran = 0;            // finished now (by this process)
   std::vector<std::string> failures;  // "run-000012: message"
   bool interrupted = false;
-  bool complete = false;   // the results file was written
+  bool complete = false;   // the results file was written (or is already there)
+  bool left_alone = false; // a finished file of the same experiment was already there
   double seconds = 0;
   SummaryTable summary;    // when complete
 

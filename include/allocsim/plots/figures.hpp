@@ -63,6 +63,10 @@ std::string escape_gnuplot_text(const std::string& text);
 // A complete gnuplot string literal: "'" + escape_gnuplot_text(text) + "'".
 std::string quote_gnuplot_text(const std::string& text);
 
+// A tic label literal: gnuplot reads an explicit tic label as a format of
+// the tic's position, so '%' is doubled besides the escaping above.
+std::string quote_gnuplot_tic_label(const std::string& text);
+
 // A display order of rows and columns: position k shows rows[k] (columns[k]).
 struct Ordering {
   std::vector<long> rows, columns;

@@ -39,7 +39,8 @@ class RunStore {
   // Builds the results file from parts 0..runs-1 (all must exist): root
   // attributes, every run group, and /summary with one row per run and one
   // column per swept key, seed, status and every numeric attribute of the
-  // runs' analysis groups. Then removes the folder.
+  // runs' analysis groups. Then removes its own files and the folder (a
+  // file someone else put there stays, and so does the folder).
   // Returns the summary table it wrote.
   SummaryTable merge(long runs, const std::string& experiment_text, const std::string& tool_version,
                      const std::vector<std::string>& swept_keys) const;
