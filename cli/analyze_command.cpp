@@ -14,6 +14,8 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/analysis/report_exports.hpp"
+#include "allocsim/core/label_alignment.hpp"
 #include "allocsim/results/report_writer.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
@@ -54,22 +56,91 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
   return options;
 }
 
+ValueReading read_value_reading(const po::variables_map& vm) {
+  ValueReading reading;
+  try {
+    if (vm.count("values")) reading.kind = value_kind_from_string(vm["values"].as<std::string>());
+    if (vm.count("units")) {
+      reading.units = vm["units"].as<double>();
+      if (!(reading.units > 0)) throw InputError("units", "must be a number > 0");
+      if (!vm.count("values")) reading.kind = ValueKind::shares;  // N units behind shares
+    }
+    reading.validate();
+  } catch (const InputError& e) {
+    throw InputError("--" + e.where(), std::string(e.what()).substr(e.where().size() + 2));
+  }
+  return reading;
+}
+
 // ---- CSV input ----
 
+// The allocation's labels are the reference every other file is matched to.
+LabeledMatrix read_allocation(const std::string& path) {
+  LabeledMatrix allocation = read_matrix_csv(path);
+  require_unique_labels(allocation.row_labels, path, "row");
+  require_unique_labels(allocation.column_labels, path, "column");
+  return allocation;
+}
+
+// A gains (or other agents x partners) file put in the allocation's order.
+Matrix read_aligned_matrix(const std::string& path, const LabeledMatrix& allocation,
+                           AllocationInput& in) {
+  LabeledMatrix other = read_matrix_csv(path);
+  in.matching.push_back(align_matrix(allocation, in.sources.allocation, other, path));
+  return other.values;
+}
+
+AccessMask read_aligned_access(const std::string& path, const LabeledMatrix& allocation,
+                               AllocationInput& in) {
+  LabeledMatrix access = read_matrix_csv(path);
+  access.values = read_access_csv(path).cast<double>();  // checks 0/1 with the cell named
+  in.matching.push_back(align_matrix(allocation, in.sources.allocation, access, path));
+  return access.values.cast<std::uint8_t>();
+}
+
 AllocationInput read_csv_input(const po::variables_map& vm) {
-  if (!vm.count("allocation") || !vm.count("gains"))
-    throw InputError("allocsim analyze",
-                     "give --allocation P.csv and --gains G.csv, or a results file");
+  if (!vm.count("allocation"))
+    throw InputError("allocsim analyze", "give --allocation P.csv [--gains G.csv], or a results file");
   AllocationInput in;
   in.sources.allocation = vm["allocation"].as<std::string>();
-  in.sources.gains = vm["gains"].as<std::string>();
-  in.allocation = read_matrix_csv(in.sources.allocation).values;
-  in.gains = read_matrix_csv(in.sources.gains).values;
+  const LabeledMatrix allocation = read_allocation(in.sources.allocation);
+  in.allocation = allocation.values;
+  in.agent_labels = allocation.row_labels;
+  in.partner_labels = allocation.column_labels;
+  if (vm.count("gains")) {
+    in.sources.gains = vm["gains"].as<std::string>();
+    in.gains = read_aligned_matrix(in.sources.gains, allocation, in);
+  }
   if (vm.count("access")) {
     in.sources.access = vm["access"].as<std::string>();
-    in.access = read_access_csv(in.sources.access);
+    in.access = read_aligned_access(in.sources.access, allocation, in);
   }
+  in.reading = read_value_reading(vm);
   return in;
+}
+
+// ---- outputs of one CSV analysis ----
+
+void print_report(const AllocationReport& report, const po::variables_map& vm) {
+  if (vm.count("json")) {
+    std::cout << allocation_report_json(report).str() << "\n";
+  } else {
+    print_allocation_report(std::cout, report);
+  }
+  if (!vm.count("json")) return;  // the text report says both
+  if (!report.observed.warning.empty()) std::cerr << "warning: " << report.observed.warning << "\n";
+  if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
+}
+
+void write_exports(const AllocationReport& report, const po::variables_map& vm) {
+  if (!vm.count("export-dir")) return;
+  const std::vector<std::string> written = export_report(report, vm["export-dir"].as<std::string>());
+  std::cerr << "wrote " << written.size() << " files into " << vm["export-dir"].as<std::string>()
+            << "\n";
+}
+
+int exit_code(const AllocationReport& report) {
+  return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;
 }
 
 // ---- results files ----
@@ -143,9 +214,16 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
 int analyze_command(const Arguments& args) {
   po::options_description options("options");
   options.add_options()
-      ("allocation", po::value<std::string>(), "CSV matrix of the allocation (agents x partners); "
-                                               "whole numbers are read as counts")
-      ("gains", po::value<std::string>(), "CSV matrix of gains (agents x partners)")
+      ("allocation", po::value<std::string>(), "CSV matrix of the allocation (agents x partners), "
+                                               "labels optional; rows and columns of the other "
+                                               "files are matched to its labels")
+      ("gains", po::value<std::string>(), "CSV matrix of gains (agents x partners); optional: "
+                                          "without it no temperature, everything else")
+      ("values", po::value<std::string>(), "how the allocation's cells are read: counts (whole "
+                                           "units) | shares (default: counts when every cell is whole)")
+      ("units", po::value<double>(), "shares: the number N of independent units behind them "
+                                     "(for standard errors and intervals)")
+      ("export-dir", po::value<std::string>(), "write labelled CSV files of the analysis into this folder")
       ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
       ("results", po::value<std::string>(), "a results file (HDF5) to analyse instead of CSV files")
       ("run", po::value<std::string>(), "results file: analyse only this run (e.g. run-000000)")
@@ -163,11 +241,15 @@ int analyze_command(const Arguments& args) {
   positional.add("results", 1);
   po::variables_map vm;
   if (!parse_or_help(args, options, positional, vm, "analyze",
-                     "--allocation P.csv --gains G.csv [--access A.csv] [--json]\n"
+                     "--allocation P.csv [--gains G.csv] [--access A.csv] [--values counts|shares]\n"
+                     "       [--units N] [--nulls MODEL] [--export-dir D] [--json]\n"
                      "       allocsim analyze results.h5 [--run NAME] [--json] [--write]"))
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
+    for (const char* csv_only : {"values", "units", "export-dir"})
+      if (vm.count(csv_only))
+        throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))
       throw InputError("allocsim analyze",
                        "give either a results file or --allocation/--gains, not both");
@@ -176,13 +258,9 @@ int analyze_command(const Arguments& args) {
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
   const AllocationReport report = analyze_allocation(read_csv_input(vm), analyze_options);
-  if (vm.count("json")) {
-    std::cout << allocation_report_json(report).str() << "\n";
-  } else {
-    print_allocation_report(std::cout, report);
-  }
-  if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
-  return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;
+  print_report(report, vm);
+  write_exports(report, vm);
+  return exit_code(report);
 }
 
 }  // namespace allocsim::cli

@@ -6,6 +6,7 @@ allocsim_layer(core
     core/atomic_file.cpp
     core/csv.cpp
     core/json.cpp
+    core/label_alignment.cpp
     core/memory_limit.cpp
     core/problem.cpp
     core/random.cpp
@@ -26,6 +27,7 @@ allocsim_layer(analysis
     analysis/marginal_newton.cpp
     analysis/gains_fit.cpp
     analysis/allocation_report.cpp
+    analysis/report_exports.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
