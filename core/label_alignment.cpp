@@ -41,9 +41,11 @@ std::vector<Eigen::Index> identity(Eigen::Index count) {
 void require_same_count(const LabelSide& reference, const LabelSide& other,
                         const std::string& side) {
   if (reference.count == other.count) return;
-  throw InputError(other.source, "has " + std::to_string(other.count) + " " + side + "s but " +
+  const std::string noun = other.noun.empty() ? side + "s" : other.noun;
+  const std::string reference_noun = reference.noun.empty() ? side + "s" : reference.noun;
+  throw InputError(other.source, "holds " + std::to_string(other.count) + " " + noun + " but " +
                                      reference.source + " has " + std::to_string(reference.count) +
-                                     "; both must list the same " + side + "s");
+                                     " " + reference_noun + "; they must match one to one");
 }
 
 LabelAlignment by_position(const LabelSide& reference, const LabelSide& other) {
@@ -106,6 +108,18 @@ LabelAlignment align_labels(const LabelSide& reference, const LabelSide& other,
 
 std::string align_matrix(const LabeledMatrix& reference, const std::string& reference_source,
                          LabeledMatrix& other, const std::string& other_source) {
+  const auto labelled = [](const LabeledMatrix& m) {
+    return !m.row_labels.empty() && !m.column_labels.empty();
+  };
+  const auto shape = [](const Matrix& m) {
+    return std::to_string(m.rows()) + " x " + std::to_string(m.cols());
+  };
+  if ((other.values.rows() != reference.values.rows() ||
+       other.values.cols() != reference.values.cols()) &&
+      !(labelled(reference) && labelled(other)))
+    throw InputError(other_source, "is " + shape(other.values) + " but " + reference_source +
+                                       " is " + shape(reference.values) +
+                                       "; both must be agents x partners");
   const LabelAlignment rows =
       align_labels({reference.row_labels, reference.values.rows(), reference_source},
                    {other.row_labels, other.values.rows(), other_source}, "row");

@@ -30,6 +30,8 @@ struct LabelSide {
   const std::vector<std::string>& labels;  // empty when the file has none
   Eigen::Index count;                      // rows (or columns) the file holds
   std::string source;                      // the file, for messages
+  std::string noun = "";                   // what it counts, for messages (e.g. "budgets");
+                                           // empty: "rows" or "columns"
 };
 
 enum class LabelMatching { by_label, by_position };
@@ -59,7 +61,9 @@ LabelAlignment align_labels(const LabelSide& reference, const LabelSide& other,
                             const std::string& side);
 
 // Puts the rows and columns of `other` (values and labels) in the order of
-// `reference`'s, by align_labels on each side. Returns one phrase for
+// `reference`'s, by align_labels on each side. Shapes that differ are an
+// InputError naming both shapes unless both sides are labelled in both files
+// (then the labels that differ are named). Returns one phrase for
 // reports, e.g. "G.csv: rows matched by label (reordered); columns matched
 // by label".
 std::string align_matrix(const LabeledMatrix& reference, const std::string& reference_source,
