@@ -51,8 +51,8 @@ class Exporter {
     std::vector<long> index_rank(order.size());
     for (std::size_t k = 0; k < by_index.size(); ++k)
       index_rank[static_cast<std::size_t>(by_index[k])] = static_cast<long>(k + 1);
-    const Vector totals = agents ? Vector(r_.values.rowwise().sum())
-                                 : Vector(r_.values.colwise().sum().transpose());
+    const Vector totals =
+        agents ? Vector(r_.values.rowwise().sum()) : Vector(r_.values.colwise().sum().transpose());
     const std::vector<std::string> names = kept_names(r_, order, agents);
     AtomicFile file(path(name));
     std::ostream& out = file.stream();

@@ -19,7 +19,8 @@ std::string quoted_list(const std::vector<std::string>& labels) {
 
 std::unordered_map<std::string, Eigen::Index> positions(const std::vector<std::string>& labels) {
   std::unordered_map<std::string, Eigen::Index> where;
-  for (std::size_t k = 0; k < labels.size(); ++k) where.emplace(labels[k], static_cast<Eigen::Index>(k));
+  for (std::size_t k = 0; k < labels.size(); ++k)
+    where.emplace(labels[k], static_cast<Eigen::Index>(k));
   return where;
 }
 
@@ -73,8 +74,9 @@ void require_unique_labels(const std::vector<std::string>& labels, const std::st
     const auto [at, inserted] = first.emplace(labels[k], k);
     if (!inserted)
       throw InputError(source, side + " label '" + labels[k] + "' occurs twice (" + side + "s " +
-                                   std::to_string(at->second + 1) + " and " + std::to_string(k + 1) +
-                                   "); each " + side + " must have its own label");
+                                   std::to_string(at->second + 1) + " and " +
+                                   std::to_string(k + 1) + "); each " + side +
+                                   " must have its own label");
   }
 }
 
@@ -92,7 +94,8 @@ LabelAlignment align_labels(const LabelSide& reference, const LabelSide& other,
   const std::vector<std::string> only_other = missing_from(other.labels, in_reference);
   if (!only_reference.empty() || !only_other.empty()) {
     std::string what = side + " labels differ from those of " + reference.source + ":";
-    if (!only_other.empty()) what += " only in " + other.source + ": " + quoted_list(only_other) + ";";
+    if (!only_other.empty())
+      what += " only in " + other.source + ": " + quoted_list(only_other) + ";";
     if (!only_reference.empty())
       what += " only in " + reference.source + ": " + quoted_list(only_reference) + ";";
     what.back() = '.';
@@ -134,7 +137,8 @@ std::string align_matrix(const LabeledMatrix& reference, const std::string& refe
 
 Vector reorder_entries(const Vector& values, const std::vector<Eigen::Index>& order) {
   Vector out(static_cast<Eigen::Index>(order.size()));
-  for (std::size_t k = 0; k < order.size(); ++k) out(static_cast<Eigen::Index>(k)) = values(order[k]);
+  for (std::size_t k = 0; k < order.size(); ++k)
+    out(static_cast<Eigen::Index>(k)) = values(order[k]);
   return out;
 }
 

@@ -73,13 +73,15 @@ std::string align_matrix(const LabeledMatrix& reference, const std::string& refe
 template <class MatrixType>
 MatrixType reorder_rows(const MatrixType& values, const std::vector<Eigen::Index>& order) {
   MatrixType out(static_cast<Eigen::Index>(order.size()), values.cols());
-  for (std::size_t k = 0; k < order.size(); ++k) out.row(static_cast<Eigen::Index>(k)) = values.row(order[k]);
+  for (std::size_t k = 0; k < order.size(); ++k)
+    out.row(static_cast<Eigen::Index>(k)) = values.row(order[k]);
   return out;
 }
 template <class MatrixType>
 MatrixType reorder_columns(const MatrixType& values, const std::vector<Eigen::Index>& order) {
   MatrixType out(values.rows(), static_cast<Eigen::Index>(order.size()));
-  for (std::size_t k = 0; k < order.size(); ++k) out.col(static_cast<Eigen::Index>(k)) = values.col(order[k]);
+  for (std::size_t k = 0; k < order.size(); ++k)
+    out.col(static_cast<Eigen::Index>(k)) = values.col(order[k]);
   return out;
 }
 Vector reorder_entries(const Vector& values, const std::vector<Eigen::Index>& order);
