@@ -1,7 +1,5 @@
 // allocsim analyze: temperature, distance to the optimal couplings and
 // structure of an allocation, from CSV files or from the runs of a results file.
-#include <H5Cpp.h>
-
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -16,7 +14,8 @@
 #include "allocsim/analysis/allocation_report.hpp"
 #include "allocsim/analysis/report_exports.hpp"
 #include "allocsim/core/label_alignment.hpp"
-#include "allocsim/results/report_writer.hpp"
+#include "allocsim/results/layout.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
@@ -139,6 +138,37 @@ void write_exports(const AllocationReport& report, const po::variables_map& vm) 
             << "\n";
 }
 
+// `--save obs.h5`: a results file with one run holding the field matrix, its
+// labels, the gains when given, and the analysis, like a simulated run.
+void save_results(const AllocationInput& in, const AllocationReport& report,
+                  const po::variables_map& vm) {
+  if (!vm.count("save")) return;
+  const std::string path = vm["save"].as<std::string>();
+  std::string text = "# a field matrix analysed by allocsim analyze (no experiment)\n";
+  text += "# allocation = " + in.sources.allocation + "\n";
+  if (in.gains) text += "# gains = " + in.sources.gains + "\n";
+  ResultsFile file(path, text, ALLOCSIM_VERSION);
+  RunWriter run = file.create_run(run_name(0));
+  run.set_integer(layout::kRunIndex, 0);
+  run.set_text(layout::kObservedAllocation, in.sources.allocation);
+  if (in.gains) run.set_text(layout::kObservedGains, in.sources.gains);
+  if (in.access) run.set_text(layout::kObservedAccess, in.sources.access);
+  run.write_labels(in.agent_labels, in.partner_labels);
+  run.write_matrix(layout::kTotal, in.allocation);
+  if (in.gains) {
+    TransportProblem scenario;
+    scenario.gains = *in.gains;
+    scenario.budgets = in.allocation.rowwise().sum();
+    scenario.capacities = in.allocation.colwise().sum().transpose();
+    scenario.access = in.access;
+    run.write_scenario(scenario);
+  }
+  run.write_report(report);
+  run.set_text(layout::kStatus, layout::kStatusComplete);
+  file.commit();
+  std::cerr << "saved the matrix and its analysis as run " << run_name(0) << " of " << path << "\n";
+}
+
 int exit_code(const AllocationReport& report) {
   return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;
 }
@@ -149,14 +179,23 @@ int exit_code(const AllocationReport& report) {
 // allocation after burn-in and its scenario.
 AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   reader.require_run(run);
-  const std::string where = reader.path() + ":/runs/" + run;
-  const TransportProblem scenario = reader.read_scenario(run);
+  const std::string where = reader.path() + ":/" + layout::kRuns + "/" + run + "/";
   AllocationInput in;
-  in.sources = {where + "/allocation/total", where + "/scenario/gains",
-                where + "/scenario/access"};
-  in.gains = scenario.gains;
-  in.access = scenario.access;
-  in.allocation = reader.read_matrix(run, "allocation/total");
+  in.sources = {where + layout::kTotal, where + layout::kGains, where + layout::kAccess};
+  if (reader.has(run, layout::kGains)) {
+    const TransportProblem scenario = reader.read_scenario(run);
+    in.gains = scenario.gains;
+    in.access = scenario.access;
+  }
+  in.allocation = reader.read_matrix(run, layout::kTotal);
+  in.agent_labels = reader.read_texts(run, layout::kAgentLabels);
+  in.partner_labels = reader.read_texts(run, layout::kPartnerLabels);
+  // A field matrix read as shares stays shares (with its N).
+  const Attributes analysis = reader.group_attributes(run, layout::kAnalysis);
+  if (attribute_text(analysis, layout::kValueReading) == "shares") {
+    in.reading.kind = ValueKind::shares;
+    in.reading.units = attribute_number(analysis, layout::kValueUnits).value_or(0);
+  }
   return in;
 }
 
@@ -164,7 +203,7 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
                          const AllocationAnalysisOptions& options) {
   std::vector<std::string> runs;
   std::vector<AllocationReport> reports;
-  try {
+  {
     const ResultsReader reader(path);
     runs = vm.count("run") ? std::vector<std::string>{vm["run"].as<std::string>()} : reader.runs();
     if (runs.empty()) throw InputError(path, "holds no runs");
@@ -173,8 +212,6 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
       if (!vm.count("json")) std::cerr << "analyzing " << run << "\n";
       reports.push_back(analyze_allocation(in, options));
     }
-  } catch (const H5::Exception& e) {
-    throw InputError(path, "cannot be read: " + e.getDetailMsg());
   }
   for (std::size_t k = 0; k < runs.size(); ++k) {
     if (vm.count("json")) {
@@ -188,21 +225,9 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
   }
   if (vm.count("write")) {
     // A copy beside the file takes the analysis; it replaces the file only when complete.
-    const std::string temporary = temporary_name_for(path);
-    std::filesystem::copy_file(path, temporary, std::filesystem::copy_options::overwrite_existing);
-    try {
-      {
-        H5::H5File file(temporary, H5F_ACC_RDWR);
-        for (std::size_t k = 0; k < runs.size(); ++k) {
-          H5::Group run_group = file.openGroup("runs/" + runs[k]);
-          write_allocation_report(run_group, reports[k]);
-        }
-      }
-      std::filesystem::rename(temporary, path);
-    } catch (...) {
-      std::remove(temporary.c_str());
-      throw;
-    }
+    ResultsUpdate update(path);
+    for (std::size_t k = 0; k < runs.size(); ++k) update.run(runs[k]).write_report(reports[k]);
+    update.commit();
     if (!vm.count("json"))
       std::cerr << "wrote the analysis of " << runs.size() << " run(s) into " << path << "\n";
   }
@@ -224,6 +249,8 @@ int analyze_command(const Arguments& args) {
       ("units", po::value<double>(), "shares: the number N of independent units behind them "
                                      "(for standard errors and intervals)")
       ("export-dir", po::value<std::string>(), "write labelled CSV files of the analysis into this folder")
+      ("save", po::value<std::string>(), "write the matrix, labels, gains and analysis as a results "
+                                         "file (one run) for inspect, plot and analyze")
       ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
       ("results", po::value<std::string>(), "a results file (HDF5) to analyse instead of CSV files")
       ("run", po::value<std::string>(), "results file: analyse only this run (e.g. run-000000)")
@@ -242,12 +269,12 @@ int analyze_command(const Arguments& args) {
   po::variables_map vm;
   if (!parse_or_help(args, options, positional, vm, "analyze",
                      "--allocation P.csv [--gains G.csv] [--access A.csv] [--values counts|shares]\n"
-                     "       [--units N] [--nulls MODEL] [--export-dir D] [--json]\n"
+                     "       [--units N] [--nulls MODEL] [--export-dir D] [--save obs.h5] [--json]\n"
                      "       allocsim analyze results.h5 [--run NAME] [--json] [--write]"))
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
-    for (const char* csv_only : {"values", "units", "export-dir"})
+    for (const char* csv_only : {"values", "units", "export-dir", "save"})
       if (vm.count(csv_only))
         throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))
@@ -257,9 +284,11 @@ int analyze_command(const Arguments& args) {
   }
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
-  const AllocationReport report = analyze_allocation(read_csv_input(vm), analyze_options);
+  const AllocationInput input = read_csv_input(vm);
+  const AllocationReport report = analyze_allocation(input, analyze_options);
   print_report(report, vm);
   write_exports(report, vm);
+  save_results(input, report, vm);
   return exit_code(report);
 }
 
