@@ -70,6 +70,7 @@ allocsim_layer(plots
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/null_histogram.cpp
     plots/results_figures.cpp
     plots/ordering.cpp
     plots/scores.cpp

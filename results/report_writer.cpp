@@ -47,6 +47,16 @@ std::vector<long long> input_order(const Ordering& order, const std::vector<Eige
   return out;
 }
 
+AccessMask links_in_input_shape(const AllocationReport& r) {
+  const ObservedAllocation& o = r.observed;
+  AccessMask links = AccessMask::Zero(static_cast<Eigen::Index>(o.kept_rows.size() + o.dropped_rows.size()),
+                                      static_cast<Eigen::Index>(o.kept_columns.size() + o.dropped_columns.size()));
+  for (std::size_t a = 0; a < o.kept_rows.size(); ++a)
+    for (std::size_t b = 0; b < o.kept_columns.size(); ++b)
+      links(o.kept_rows[a], o.kept_columns[b]) = r.links(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
+  return links;
+}
+
 void write_reading(H5::Group& group, const AllocationReport& r) {
   set_text_attribute(group, layout::kValueReading, r.observed.counts ? "counts" : "shares");
   set_number_attribute(group, layout::kValueUnits, r.observed.units);
@@ -113,6 +123,7 @@ void RunWriter::write_report(const AllocationReport& r) {
     if (r.has_entropic) write_comparison(group, layout::kEntropicPrefix, r.versus_entropic);
     write_structure(group, r);
     write_reading(group, r);
+    write_access(group, leaf_name(layout::kLinks), links_in_input_shape(r));
     const auto rows =
         static_cast<Eigen::Index>(r.observed.kept_rows.size() + r.observed.dropped_rows.size());
     const auto cols =

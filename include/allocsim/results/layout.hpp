@@ -53,6 +53,8 @@ inline constexpr char kColumnOrder[] = "analysis/column_order";
 // Nested order (decreasing degree; input indices, left-out rows and columns last).
 inline constexpr char kNestedRowOrder[] = "analysis/nested_row_order";
 inline constexpr char kNestedColumnOrder[] = "analysis/nested_column_order";
+// The binarised allocation the structure metrics used (uint8, input shape).
+inline constexpr char kLinks[] = "analysis/links";
 // The metric of each null matrix, "<metric>_null_values", e.g. "nodf_null_values".
 inline constexpr char kNullValuesSuffix[] = "_null_values";
 
