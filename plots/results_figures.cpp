@@ -155,7 +155,7 @@ void draw_heatmaps(PlotContext& context, const ResultsReader& reader, const RunR
   heatmaps.ordering = observed ? stored_nested_ordering(reader, run.name)
                               : stored_ordering(reader, run.name);
   if (!heatmaps.ordering.rows.empty())
-    heatmaps.ordering_name = observed ? "nested order (degree)"
+    heatmaps.ordering_name = observed ? "nested order (number of links)"
                                       : run.text(layout::kOrderName).value_or("the stored ordering");
   heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);
   heatmaps.column_labels = reader.read_texts(run.name, layout::kPartnerLabels);
@@ -175,7 +175,7 @@ void draw_links(PlotContext& context, const ResultsReader& reader, const RunReco
                                  " cells",
                              links});
   heatmaps.ordering = stored_nested_ordering(reader, run.name);
-  heatmaps.ordering_name = "nested order (degree)";
+  heatmaps.ordering_name = "nested order (number of links)";
   heatmaps.log_colour_scale = false;
   heatmaps.colour_bar = false;
   heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);

@@ -172,6 +172,30 @@ def main():
             exact = np.array([[float(v) for v in row[1:]] for row in list(csv.reader(f))[1:]])
         check(abs(exact.sum() - N) < 1e-6 * N and (exact > 1e-9).sum() <= (n - 1) + m - 1,
               "coupling_exact.csv is a forest-sized plan in the allocation's units")
+
+        # --save: a results file that analyze, inspect and plot read like a simulated run.
+        H = os.path.join(d, "obs.h5")
+        saved = report(binary, "--allocation", P, "--gains", G, "--nulls", "curveball",
+                       "--null-samples", "30", "--save", H)
+        again = report(binary, H, "--nulls", "curveball", "--null-samples", "30")
+        differing = [k for k in (saved or {}) if k not in ("allocation", "matching", "note", "run")
+                     and saved[k] != (again or {}).get(k)]
+        check(saved is not None and again is not None and not differing,
+              f"analyze obs.h5 reproduces the CSV analysis (differing: {differing})")
+        inspect = subprocess.run([binary, "inspect", H], capture_output=True, text=True)
+        check(inspect.returncode == 0 and "labels/agents" in inspect.stdout
+              and "scenario/gains" in inspect.stdout, "inspect lists the labels and gains of obs.h5")
+        F = os.path.join(d, "figures")
+        plot = subprocess.run([binary, "plot", H, "--out-dir", F], capture_output=True, text=True)
+        expected = ["run-000000-allocations.png", "run-000000-links.png", "run-000000-nulls.png"]
+        sizes = [os.path.getsize(os.path.join(F, x)) if os.path.exists(os.path.join(F, x)) else 0
+                 for x in expected]
+        check(plot.returncode == 0 and all(size > 10000 for size in sizes),
+              f"plot obs.h5 draws the observed matrix, its links and its null distribution {sizes}")
+        bad = subprocess.run([binary, "analyze", "--allocation", S, "--values", "sharez", "--save",
+                              os.path.join(d, "never.h5")], capture_output=True, text=True)
+        check(bad.returncode == 2 and not os.path.exists(os.path.join(d, "never.h5")),
+              "bad input leaves no results file behind")
     return 1 if failures else 0
 
 
