@@ -74,8 +74,14 @@ ValueReading read_value_reading(const po::variables_map& vm) {
 // ---- CSV input ----
 
 // The allocation's labels are the reference every other file is matched to.
-LabeledMatrix read_allocation(const std::string& path) {
-  LabeledMatrix allocation = read_matrix_csv(path);
+LabeledMatrix read_allocation(const std::string& path, const po::variables_map& vm) {
+  CsvReadOptions reading;
+  if (vm.count("missing")) {
+    if (vm["missing"].as<std::string>() != "zero")
+      throw InputError("--missing", "'" + vm["missing"].as<std::string>() + "' is not zero");
+    reading.missing_as_zero = true;
+  }
+  LabeledMatrix allocation = read_matrix_csv(path, reading);
   require_unique_labels(allocation.row_labels, path, "row");
   require_unique_labels(allocation.column_labels, path, "column");
   return allocation;
@@ -102,7 +108,7 @@ AllocationInput read_csv_input(const po::variables_map& vm) {
     throw InputError("allocsim analyze", "give --allocation P.csv [--gains G.csv], or a results file");
   AllocationInput in;
   in.sources.allocation = vm["allocation"].as<std::string>();
-  const LabeledMatrix allocation = read_allocation(in.sources.allocation);
+  const LabeledMatrix allocation = read_allocation(in.sources.allocation, vm);
   in.allocation = allocation.values;
   in.agent_labels = allocation.row_labels;
   in.partner_labels = allocation.column_labels;
@@ -249,6 +255,8 @@ int analyze_command(const Arguments& args) {
       ("units", po::value<double>(), "shares: the number N of independent units behind them "
                                      "(for standard errors and intervals)")
       ("export-dir", po::value<std::string>(), "write labelled CSV files of the analysis into this folder")
+      ("missing", po::value<std::string>(), "zero: read empty and NA cells of the allocation as 0 "
+                                            "(default: they are an error naming the cell)")
       ("save", po::value<std::string>(), "write the matrix, labels, gains and analysis as a results "
                                          "file (one run) for inspect, plot and analyze")
       ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
@@ -274,7 +282,7 @@ int analyze_command(const Arguments& args) {
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
-    for (const char* csv_only : {"values", "units", "export-dir", "save"})
+    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing"})
       if (vm.count(csv_only))
         throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))

@@ -132,6 +132,19 @@ def main():
               and close(as_shares["temperature"]["epsilon"], as_counts["epsilon"]),
               "--values shares reads them as shares: same epsilon, no interval, no warning")
 
+        # Missing cells: an error naming the cell, or zero with --missing zero.
+        with open(S, "w") as f:
+            f.write(",a,b,c\nx,5,NA,1\ny,4,2,\nz,1,1,1\n")
+        check(one_line_error(analyze(binary, "--allocation", S), 2, ["S.csv"]),
+              "NA and empty cells exit 2 by default")
+        zero = report(binary, "--allocation", S, "--missing", "zero")
+        check(zero is not None and zero["structure"]["connectance"] == 7 / 9,
+              "--missing zero reads NA and empty cells as 0")
+        with open(S, "w") as f:
+            f.write("a;b\n1;2\n")
+        check(one_line_error(analyze(binary, "--allocation", S), 2, ["S.csv", "semicolon"]),
+              "a semicolon-separated file exits 2 naming the separator")
+
         # Gains optional, or uninformative: exit 0, everything else reported.
         none = report(binary, "--allocation", P)
         check(none is not None and none["temperature"]["status"] == "no_gains"
