@@ -1,6 +1,8 @@
 #include "allocsim/analysis/allocation_report.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <functional>
 #include <ostream>
 #include <sstream>
 
@@ -83,52 +85,229 @@ JsonObject null_json(const NullComparison& c) {
   return json;
 }
 
+
+// Fewest of the largest cells whose shares add up to `share` of the total.
+long cells_for_share(const std::vector<double>& descending, double total, double share) {
+  double sum = 0;
+  for (std::size_t k = 0; k < descending.size(); ++k) {
+    sum += descending[k];
+    if (sum >= share * total * (1 - 1e-12)) return static_cast<long>(k + 1);
+  }
+  return static_cast<long>(descending.size());
+}
+
+// The matrix structure is measured on, and whose margins the null ensemble
+// keeps: counts as they are (their whole units drawn anew), shares as shares
+// (so a min-count threshold is a share under the shares reading).
+const Matrix& read_matrix(const AllocationReport& r) {
+  return r.observed.counts ? r.values : r.observed.shares;
+}
+
+// Indices of the kept matrix mapped back to the input; left-out ones appended.
+Ordering to_input_indices(const Ordering& kept_order, const std::vector<Eigen::Index>& kept,
+                          const std::vector<Eigen::Index>& dropped) {
+  Ordering out;
+  for (const Eigen::Index k : kept_order) out.push_back(kept[static_cast<std::size_t>(k)]);
+  out.insert(out.end(), dropped.begin(), dropped.end());
+  return out;
+}
+
+GradientOrder display_order(const AllocationReport& r) {
+  GradientOrder kept = correspondence_order(r.values);
+  GradientOrder order = kept;
+  order.rows = to_input_indices(kept.rows, r.observed.kept_rows, r.observed.dropped_rows);
+  order.columns = to_input_indices(kept.columns, r.observed.kept_columns, r.observed.dropped_columns);
+  return order;
+}
+
+// A temperature that is not estimated at all: every number NaN (null in JSON).
+TemperatureResult not_estimated(TemperatureStatus status, const std::string& why,
+                                const AllocationAnalysisOptions& options) {
+  TemperatureResult t;
+  t.status = status;
+  t.message = why;
+  t.epsilon = t.beta = t.standard_error = t.ci_low = t.ci_high = std::nan("");
+  t.observed_gain = t.fitted_gain = t.optimum_gain = t.independent_gain = std::nan("");
+  t.confidence = options.temperature.confidence;
+  return t;
+}
+
+void compare_with_couplings(const AllocationAnalysisOptions& options, AllocationReport& report) {
+  const ObservedAllocation& o = report.observed;
+  if (!o.has_gains) {
+    report.temperature = not_estimated(
+        TemperatureStatus::no_gains, "no gains given; structure, nulls and concentration need none",
+        options);
+    return;
+  }
+  const std::string reason = uninformative_gains_reason(o.problem);
+  if (!reason.empty()) {
+    report.temperature =
+        not_estimated(TemperatureStatus::not_identified, o.sources.gains + ": " + reason, options);
+    return;
+  }
+  report.exact = solve_exact(o.problem);
+  report.temperature = estimate_temperature(o, options.temperature, &report.exact);
+  if (report.exact.optimal()) report.versus_exact = compare_allocation(o.shares, report.exact.coupling);
+  if (report.temperature.estimated()) {
+    report.has_entropic = true;
+    report.versus_entropic = compare_allocation(o.shares, report.temperature.coupling);
+  }
+}
+
+Ordering nested_order(const Eigen::VectorXi& degrees, const Vector& totals) {
+  Ordering order(static_cast<std::size_t>(degrees.size()));
+  for (Eigen::Index k = 0; k < degrees.size(); ++k) order[static_cast<std::size_t>(k)] = k;
+  std::stable_sort(order.begin(), order.end(), [&](Eigen::Index a, Eigen::Index b) {
+    if (degrees(a) != degrees(b)) return degrees(a) > degrees(b);
+    return totals(a) > totals(b);
+  });
+  return order;
+}
+
+void describe_structure(const AllocationAnalysisOptions& options, AllocationReport& report) {
+  StructureReport& s = report.structure;
+  s.connectance = connectance(report.links);
+  s.nodf = nodf(report.links);
+  s.wnodf = weights_on_links(read_matrix(report), options.binarize);
+  s.spectral_radius = spectral_radius(report.links);
+  s.display_order = display_order(report);
+  if (options.nulls) compare_structure_with_null(read_matrix(report), options, s);
+  report.orderings.fitness = fitness_complexity(report.links);
+  report.orderings.complexity = economic_complexity_index(report.links);
+  report.orderings.agent_degrees = row_degrees(report.links);
+  report.orderings.partner_degrees = column_degrees(report.links);
+  s.nested_rows = nested_order(report.orderings.agent_degrees, report.values.rowwise().sum());
+  s.nested_columns =
+      nested_order(report.orderings.partner_degrees, report.values.colwise().sum().transpose());
+}
+
+std::string name_or_position(const std::vector<std::string>& labels, Eigen::Index k,
+                             const char* side) {
+  if (!labels.empty()) return labels[static_cast<std::size_t>(k)];
+  return std::string(side) + " " + std::to_string(k + 1);
+}
+
 }  // namespace
+
+std::string AllocationReport::agent_name(Eigen::Index i) const {
+  return name_or_position(agent_labels, i, "row");
+}
+std::string AllocationReport::partner_name(Eigen::Index j) const {
+  return name_or_position(partner_labels, j, "column");
+}
+
+WeightConcentration weight_concentration(const Matrix& shares) {
+  WeightConcentration c;
+  std::vector<double> cells(shares.data(), shares.data() + shares.size());
+  std::sort(cells.begin(), cells.end(), std::greater<double>());
+  const double total = shares.sum();
+  c.cells = static_cast<long>(shares.size());
+  c.nonzero_cells = static_cast<long>((shares.array() > 0).count());
+  c.forest_links = static_cast<long>(shares.rows() + shares.cols() - 1);
+  c.share_on_forest_links = weight_on_largest_cells(shares, c.forest_links);
+  c.cells_for_50 = cells_for_share(cells, total, 0.5);
+  c.cells_for_70 = cells_for_share(cells, total, 0.7);
+  c.cells_for_90 = cells_for_share(cells, total, 0.9);
+  return c;
+}
 
 AllocationReport analyze_allocation(const AllocationInput& in,
                                     const AllocationAnalysisOptions& options) {
   AllocationReport report;
-  report.observed = observe_allocation(in.allocation, in.gains, in.access, in.sources);
-  report.temperature = estimate_temperature(report.observed, options.temperature);
-  report.exact = solve_exact(report.observed.problem);
-  if (report.exact.optimal())
-    report.versus_exact = compare_allocation(report.observed.shares, report.exact.coupling);
-  if (report.temperature.estimated()) {
-    report.has_entropic = true;
-    report.versus_entropic =
-        compare_allocation(report.observed.shares, report.temperature.coupling);
-  }
-  const BinaryMatrix links = binarize(in.allocation, options.binarize);
-  report.structure.connectance = connectance(links);
-  report.structure.nodf = nodf(links);
-  report.structure.wnodf = weights_on_links(in.allocation, options.binarize);
-  report.structure.spectral_radius = spectral_radius(links);
+  report.observed = observe_allocation(in.allocation, in.gains, in.access, in.sources, in.reading);
+  report.agent_labels = in.agent_labels;
+  report.partner_labels = in.partner_labels;
+  report.matching = in.matching;
+  report.values = restrict_to_kept(in.allocation, report.observed);
+  report.links = binarize(read_matrix(report), options.binarize);
   report.binarize_rule = describe(options.binarize);
-  report.structure.display_order = correspondence_order(in.allocation);
-  if (options.nulls) compare_structure_with_null(in.allocation, options, report.structure);
+  compare_with_couplings(options, report);
+  describe_structure(options, report);
+  report.concentration = weight_concentration(report.observed.shares);
   return report;
 }
 
-JsonObject allocation_report_json(const AllocationReport& r) {
-  JsonObject json;
-  const ObservedAllocation& o = r.observed;
-  json.add("allocation", o.sources.allocation)
-      .add("agents", static_cast<long long>(o.kept_rows.size() + o.dropped_rows.size()))
-      .add("partners", static_cast<long long>(o.kept_columns.size() + o.dropped_columns.size()))
-      .add("counts", o.counts);
-  if (o.counts) json.add("units", o.units); else json.add_null("units");
-  if (!o.note.empty()) json.add("note", o.note);
-  json.add("temperature", temperature_json(r.temperature));
-  JsonObject exact = comparison_json(r.versus_exact);
-  exact.add("status", to_string(r.exact.status)).add("total_gain", r.exact.total_gain);
-  json.add("exact", exact);
-  if (r.has_entropic) {
-    JsonObject entropic = comparison_json(r.versus_entropic);
-    entropic.add("epsilon", r.temperature.epsilon).add("total_gain", r.temperature.fitted_gain);
-    json.add("entropic", entropic);
-  } else {
-    json.add_null("entropic");
+namespace {
+
+std::vector<std::string> names(const AllocationReport& r, const std::vector<Eigen::Index>& indices,
+                               bool agents) {
+  std::vector<std::string> out;
+  for (const Eigen::Index k : indices) out.push_back(agents ? r.agent_name(k) : r.partner_name(k));
+  return out;
+}
+
+std::string joined(const std::vector<std::string>& items, std::size_t at_most) {
+  std::string out;
+  for (std::size_t k = 0; k < items.size() && k < at_most; ++k) out += (k ? ", " : "") + items[k];
+  if (items.size() > at_most) out += ", ... (" + std::to_string(items.size()) + " in all)";
+  return out;
+}
+
+// One entry per analysed agent (or partner), in Fitness-Complexity order.
+std::vector<JsonObject> ordering_json(const AllocationReport& r, bool agents) {
+  const Orderings& o = r.orderings;
+  const Ordering& order = agents ? o.fitness.row_order : o.fitness.column_order;
+  const Ordering& eci_order = agents ? o.complexity.row_order : o.complexity.column_order;
+  const std::vector<Eigen::Index>& kept = agents ? r.observed.kept_rows : r.observed.kept_columns;
+  std::vector<long long> eci_rank(order.size());
+  for (std::size_t k = 0; k < eci_order.size(); ++k)
+    eci_rank[static_cast<std::size_t>(eci_order[k])] = static_cast<long long>(k + 1);
+  std::vector<JsonObject> entries;
+  for (std::size_t k = 0; k < order.size(); ++k) {
+    const Eigen::Index a = order[k];
+    const Eigen::Index input = kept[static_cast<std::size_t>(a)];
+    JsonObject e;
+    e.add("label", agents ? r.agent_name(input) : r.partner_name(input))
+        .add("index", static_cast<long long>(input + 1))
+        .add("rank", static_cast<long long>(k + 1))
+        .add("degree", static_cast<long long>((agents ? o.agent_degrees : o.partner_degrees)(a)))
+        .add(agents ? "fitness" : "complexity", (agents ? o.fitness.fitness : o.fitness.complexity)(a))
+        .add(agents ? "eci" : "pci", (agents ? o.complexity.row_index : o.complexity.column_index)(a))
+        .add(agents ? "eci_rank" : "pci_rank", eci_rank[static_cast<std::size_t>(a)]);
+    entries.push_back(e);
   }
+  return entries;
+}
+
+JsonObject orderings_json(const AllocationReport& r) {
+  JsonObject json;
+  json.add("fitness_complexity", to_string(r.orderings.fitness.status))
+      .add("eci", to_string(r.orderings.complexity.status))
+      .add("agents", ordering_json(r, true))
+      .add("partners", ordering_json(r, false));
+  return json;
+}
+
+JsonObject concentration_json(const WeightConcentration& c) {
+  JsonObject json;
+  json.add("forest_links", static_cast<long long>(c.forest_links))
+      .add("share_on_forest_links", c.share_on_forest_links)
+      .add("cells_for_50", static_cast<long long>(c.cells_for_50))
+      .add("cells_for_70", static_cast<long long>(c.cells_for_70))
+      .add("cells_for_90", static_cast<long long>(c.cells_for_90))
+      .add("nonzero_cells", static_cast<long long>(c.nonzero_cells))
+      .add("cells", static_cast<long long>(c.cells));
+  return json;
+}
+
+JsonObject values_json(const ObservedAllocation& o) {
+  JsonObject json;
+  json.add("reading", o.counts ? "counts" : "shares");
+  if (o.units > 0) json.add("units", o.units); else json.add_null("units");
+  json.add("description", o.reading);
+  if (!o.warning.empty()) json.add("warning", o.warning);
+  return json;
+}
+
+JsonObject left_out_json(const AllocationReport& r) {
+  JsonObject json;
+  json.add("agents", names(r, r.observed.dropped_rows, true))
+      .add("partners", names(r, r.observed.dropped_columns, false));
+  return json;
+}
+
+JsonObject structure_json(const AllocationReport& r) {
   JsonObject structure;
   structure.add("nodf", r.structure.nodf.total).add("nodf_rows", r.structure.nodf.rows)
       .add("nodf_columns", r.structure.nodf.columns).add("wnodf", r.structure.wnodf.total)
@@ -136,35 +315,125 @@ JsonObject allocation_report_json(const AllocationReport& r) {
       .add("connectance", r.structure.connectance).add("binarize", r.binarize_rule);
   if (r.structure.nodf_null) structure.add("nodf_null", null_json(*r.structure.nodf_null));
   if (r.structure.wnodf_null) structure.add("wnodf_null", null_json(*r.structure.wnodf_null));
-  json.add("structure", structure);
+  return structure;
+}
+
+void add_couplings_json(const AllocationReport& r, JsonObject& json) {
+  if (r.exact.optimal()) {
+    JsonObject exact = comparison_json(r.versus_exact);
+    exact.add("status", to_string(r.exact.status)).add("total_gain", r.exact.total_gain);
+    json.add("exact", exact);
+  } else if (r.observed.has_gains && r.temperature.status != TemperatureStatus::not_identified) {
+    JsonObject exact;
+    exact.add("status", to_string(r.exact.status)).add("message", r.exact.message);
+    json.add("exact", exact);
+  } else {
+    json.add_null("exact");
+  }
+  if (r.has_entropic) {
+    JsonObject entropic = comparison_json(r.versus_entropic);
+    entropic.add("epsilon", r.temperature.epsilon).add("total_gain", r.temperature.fitted_gain);
+    json.add("entropic", entropic);
+  } else {
+    json.add_null("entropic");
+  }
+}
+
+}  // namespace
+
+JsonObject allocation_report_json(const AllocationReport& r) {
+  JsonObject json;
+  const ObservedAllocation& o = r.observed;
+  json.add("allocation", o.sources.allocation)
+      .add("agents", static_cast<long long>(o.kept_rows.size()))
+      .add("partners", static_cast<long long>(o.kept_columns.size()))
+      .add("input_agents", static_cast<long long>(o.kept_rows.size() + o.dropped_rows.size()))
+      .add("input_partners", static_cast<long long>(o.kept_columns.size() + o.dropped_columns.size()))
+      .add("left_out", left_out_json(r))
+      .add("labels", r.has_labels())
+      .add("matching", r.matching)
+      .add("counts", o.counts);
+  if (o.units > 0) json.add("units", o.units); else json.add_null("units");
+  json.add("values", values_json(o));
+  if (!o.note.empty()) json.add("note", o.note);
+  json.add("gains", o.has_gains);
+  json.add("temperature", temperature_json(r.temperature));
+  add_couplings_json(r, json);
+  json.add("structure", structure_json(r));
+  json.add("concentration", concentration_json(r.concentration));
+  json.add("orderings", orderings_json(r));
   return json;
 }
 
-void print_allocation_report(std::ostream& out, const AllocationReport& r) {
+namespace {
+
+void print_header(std::ostream& out, const AllocationReport& r) {
+  const ObservedAllocation& o = r.observed;
+  out << "allocation " << o.sources.allocation << ": " << o.kept_rows.size() << " agents x "
+      << o.kept_columns.size() << " partners analysed";
+  if (!o.dropped_rows.empty() || !o.dropped_columns.empty())
+    out << " (of " << o.kept_rows.size() + o.dropped_rows.size() << " x "
+        << o.kept_columns.size() + o.dropped_columns.size() << ")";
+  out << "\n  values read as " << o.reading << "\n";
+  if (!o.warning.empty()) out << "  warning: " << o.warning << "\n";
+  for (const std::string& m : r.matching) out << "  " << m << "\n";
+  if (!o.dropped_rows.empty())
+    out << "  left out, all-zero rows: " << joined(names(r, o.dropped_rows, true), 12) << "\n";
+  if (!o.dropped_columns.empty())
+    out << "  left out, all-zero columns: " << joined(names(r, o.dropped_columns, false), 12) << "\n";
+}
+
+void print_temperature(std::ostream& out, const AllocationReport& r) {
   const ObservedAllocation& o = r.observed;
   const TemperatureResult& t = r.temperature;
-  out.precision(4);
-  out << "allocation " << o.sources.allocation << ": " << o.shares.rows() << " agents x "
-      << o.shares.cols() << " partners, ";
-  if (o.counts) out << o.units << " units (counts)\n"; else out << "shares (no unit count)\n";
-  if (!o.note.empty()) out << "note: " << o.note << "\n";
   out << "temperature: " << t.brief() << "\n";
+  if (!o.has_gains || t.status == TemperatureStatus::not_identified) return;
   if (!t.message.empty() && t.estimated()) out << "  note: " << t.message << "\n";
   out << "  gain: observed " << t.observed_gain << ", exact optimum " << t.optimum_gain
       << ", independent coupling " << t.independent_gain << "\n";
   if (r.exact.optimal())
     out << "versus the exact optimum (" << r.exact.support_size << " links): "
-        << r.versus_exact.brief() << "; " << percent(r.versus_exact.weight_on_top_links)
-        << " of the weight on the allocation's own top " << o.shares.rows() + o.shares.cols() - 1
-        << " cells\n";
+        << r.versus_exact.brief() << "\n";
   if (r.has_entropic)
     out << "versus the entropic coupling at the estimate: " << r.versus_entropic.brief() << "\n";
+}
+
+void print_concentration(std::ostream& out, const WeightConcentration& c) {
+  out << "weight: " << percent(c.share_on_forest_links) << " of the total on the " << c.forest_links
+      << " largest cells (n+m-1, the most links an exact optimum uses); 50% on " << c.cells_for_50
+      << " cells, 70% on " << c.cells_for_70 << ", 90% on " << c.cells_for_90 << " of "
+      << c.nonzero_cells << " non-zero (" << c.cells << " cells)\n";
+}
+
+void print_orderings(std::ostream& out, const AllocationReport& r) {
+  const FitnessComplexityResult& f = r.orderings.fitness;
+  const auto ranked = [&](const Ordering& order, const std::vector<Eigen::Index>& kept, bool agents) {
+    std::vector<Eigen::Index> input;
+    for (const Eigen::Index k : order) input.push_back(kept[static_cast<std::size_t>(k)]);
+    return joined(names(r, input, agents), 10);
+  };
+  out << "orderings (Fitness-Complexity, " << to_string(f.status) << "; ECI "
+      << to_string(r.orderings.complexity.status) << " in the JSON):\n"
+      << "  agents by fitness: " << ranked(f.row_order, r.observed.kept_rows, true) << "\n"
+      << "  partners by complexity: " << ranked(f.column_order, r.observed.kept_columns, false)
+      << "\n";
+}
+
+}  // namespace
+
+void print_allocation_report(std::ostream& out, const AllocationReport& r) {
+  out.precision(4);
+  print_header(out, r);
+  print_temperature(out, r);
+  print_concentration(out, r.concentration);
   out << "structure (" << r.binarize_rule << "): connectance " << r.structure.connectance
-      << ", NODF " << r.structure.nodf.total << ", WNODF (on those links) " << r.structure.wnodf.total
+      << ", NODF " << r.structure.nodf.total << " (rows " << r.structure.nodf.rows << ", columns "
+      << r.structure.nodf.columns << "), WNODF (on those links) " << r.structure.wnodf.total
       << ", spectral radius " << r.structure.spectral_radius << "\n";
   if (r.structure.nodf_null) out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
   if (r.structure.wnodf_null) out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
-  out << kTemperatureCaution << "\n";
+  print_orderings(out, r);
+  if (r.observed.has_gains) out << kTemperatureCaution << "\n";
 }
 
 }  // namespace allocsim

@@ -17,8 +17,9 @@ std::string shape(const char* what, Eigen::Index rows, Eigen::Index cols) {
   return std::string(what) + " " + std::to_string(rows) + " x " + std::to_string(cols);
 }
 
-void check_entries(const Matrix& p, const Matrix& gains, const std::optional<AccessMask>& access,
-                   const AllocationSources& s) {
+void check_entries(const Matrix& p, const std::optional<Matrix>& given_gains,
+                   const std::optional<AccessMask>& access, const AllocationSources& s) {
+  const Matrix& gains = given_gains ? *given_gains : p;  // without gains: nothing to check
   if (p.rows() != gains.rows() || p.cols() != gains.cols())
     throw InputError(s.allocation, "is " + shape("", p.rows(), p.cols()).substr(1) + " but " +
                                        s.gains + " is " + shape("", gains.rows(), gains.cols()).substr(1) +
@@ -66,20 +67,95 @@ std::string drop_note(const ObservedAllocation& o, const std::string& source) {
   return note;
 }
 
+bool whole(double v) { return v == std::round(v); }
+
+// Counts must be whole numbers; the first that is not is named.
+void require_whole(const Matrix& p, const std::string& source) {
+  for (Eigen::Index i = 0; i < p.rows(); ++i)
+    for (Eigen::Index j = 0; j < p.cols(); ++j)
+      if (!whole(p(i, j)))
+        throw InputError(source, cell(i, j) + " holds " + format_number(p(i, j)) +
+                                     ", not a whole number; counts (--values counts) are whole "
+                                     "numbers; read fractions as --values shares");
+}
+
+// More than half of the non-zero cells above kLargeCellValue.
+bool mostly_large(const Matrix& p) {
+  const auto nonzero = (p.array() > 0).count();
+  return 2 * (p.array() > kLargeCellValue).count() > nonzero;
+}
+
+std::string units_phrase(double units) {
+  std::ostringstream out;
+  out.precision(6);
+  out << units;
+  return out.str();
+}
+
+// Sets counts, units, reading and warning.
+void read_values(const Matrix& p, const ValueReading& r, const std::string& source,
+                 ObservedAllocation& o) {
+  const bool all_whole = (p.array() == p.array().round()).all();
+  if (r.kind == ValueKind::counts) require_whole(p, source);
+  o.counts = r.kind == ValueKind::counts || (r.kind == ValueKind::automatic && all_whole);
+  o.units = o.counts ? p.sum() : r.units;
+  const std::string n = units_phrase(o.units);
+  if (o.counts)
+    o.reading = "counts" + std::string(r.kind == ValueKind::automatic ? " (every cell whole)" : "") +
+                ": N = " + n + " independent units";
+  else if (o.units > 0)
+    o.reading = "shares observed on N = " + n + " independent units (--units)";
+  else
+    o.reading = std::string("shares") + (all_whole ? " (--values shares)" : " (cells not whole)") +
+                ": no unit count, so no standard error or interval";
+  if (o.counts && (o.units > kLargeUnitCount || mostly_large(p)))
+    o.warning = "the cells are read as counts of N = " + n +
+                " independent choices and the intervals assume exactly that; if they are money "
+                "or measurements rather than tallies, read them as shares: --values shares "
+                "(with --units N for the number of independent choices behind them)";
+  else if (!o.counts && o.units > kLargeUnitCount)
+    o.warning = "the intervals assume N = " + n +
+                " independent choices (--units); that many is rarely true of field data";
+}
+
 }  // namespace
+
+std::string to_string(ValueKind kind) {
+  switch (kind) {
+    case ValueKind::automatic: return "automatic";
+    case ValueKind::counts: return "counts";
+    case ValueKind::shares: return "shares";
+  }
+  return "";
+}
+
+ValueKind value_kind_from_string(const std::string& text) {
+  for (auto k : {ValueKind::automatic, ValueKind::counts, ValueKind::shares})
+    if (to_string(k) == text) return k;
+  throw InputError("values", "'" + text + "' is not one of counts, shares, automatic");
+}
+
+void ValueReading::validate() const {
+  if (!(units >= 0) || !std::isfinite(units))
+    throw InputError("units", "must be a finite number > 0");
+  if (units > 0 && kind == ValueKind::counts)
+    throw InputError("units", "applies to shares; counts are their own number of units (their sum)");
+}
 
 double ObservedAllocation::observed_gain() const {
   return problem.gains.cwiseProduct(shares).sum();
 }
 
-ObservedAllocation observe_allocation(const Matrix& allocation, const Matrix& gains,
+ObservedAllocation observe_allocation(const Matrix& allocation, const std::optional<Matrix>& gains,
                                       const std::optional<AccessMask>& access,
-                                      const AllocationSources& sources) {
+                                      const AllocationSources& sources,
+                                      const ValueReading& reading) {
+  reading.validate();
   check_entries(allocation, gains, access, sources);
   ObservedAllocation o;
   o.sources = sources;
-  o.counts = (allocation.array() == allocation.array().round()).all();
-  o.units = o.counts ? allocation.sum() : 0.0;
+  o.has_gains = gains.has_value();
+  read_values(allocation, reading, sources.allocation, o);
   const Vector rows = allocation.rowwise().sum();
   const Vector cols = allocation.colwise().sum().transpose();
   for (Eigen::Index i = 0; i < rows.size(); ++i)
@@ -88,7 +164,8 @@ ObservedAllocation observe_allocation(const Matrix& allocation, const Matrix& ga
     (cols(j) > 0 ? o.kept_columns : o.dropped_columns).push_back(j);
   o.note = drop_note(o, sources.allocation);
   o.shares = restrict_to_kept(allocation, o) / allocation.sum();
-  o.problem.gains = restrict_to_kept(gains, o);
+  o.problem.gains = gains ? restrict_to_kept(*gains, o)
+                          : Matrix::Zero(o.shares.rows(), o.shares.cols()).eval();
   if (access) {
     AccessMask kept(o.kept_rows.size(), o.kept_columns.size());
     for (std::size_t a = 0; a < o.kept_rows.size(); ++a)

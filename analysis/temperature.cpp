@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <limits>
 #include <sstream>
 #include <vector>
@@ -9,6 +10,7 @@
 #include "allocsim/analysis/additive_residual.hpp"
 #include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/analysis/marginal_newton.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -389,27 +391,18 @@ void TemperatureOptions::validate() const {
     throw InputError("boundary_tolerance", "must be in [0, 0.01]");
 }
 
-std::string to_string(TemperatureStatus status) {
-  switch (status) {
-    case TemperatureStatus::estimated:
-      return "estimated";
-    case TemperatureStatus::at_optimum:
-      return "at_optimum";
-    case TemperatureStatus::not_explained_by_noise:
-      return "not_explained_by_noise";
-    case TemperatureStatus::not_converged:
-      return "not_converged";
-  }
-  return "unknown";
-}
+constexpr EnumWord<TemperatureStatus> kTemperatureStatusWords[] = {
+    {TemperatureStatus::estimated, "estimated"},
+    {TemperatureStatus::at_optimum, "at_optimum"},
+    {TemperatureStatus::not_explained_by_noise, "not_explained_by_noise"},
+    {TemperatureStatus::not_converged, "not_converged"},
+    {TemperatureStatus::no_gains, "no_gains"},
+    {TemperatureStatus::not_identified, "not_identified"}};
+
+std::string to_string(TemperatureStatus value) { return word_of(value, kTemperatureStatusWords); }
 
 TemperatureStatus temperature_status_from_string(const std::string& text) {
-  for (auto s : {TemperatureStatus::estimated, TemperatureStatus::at_optimum,
-                 TemperatureStatus::not_explained_by_noise, TemperatureStatus::not_converged})
-    if (to_string(s) == text) return s;
-  throw InputError("status", "'" + text +
-                                 "' is not one of estimated, at_optimum, "
-                                 "not_explained_by_noise, not_converged");
+  return value_of(text, kTemperatureStatusWords, "status");
 }
 
 double chi_square_1_quantile(double confidence) {
@@ -417,33 +410,47 @@ double chi_square_1_quantile(double confidence) {
   return z * z;
 }
 
-void require_informative_gains(const TransportProblem& problem, const std::string& gains_source) {
+std::string uninformative_gains_reason(const TransportProblem& problem) {
   Matrix allowed = Matrix::Ones(problem.agents(), problem.partners());
   if (problem.access)
     for (Eigen::Index k = 0; k < allowed.size(); ++k)
       allowed.data()[k] = problem.access->data()[k] != 0 ? 1.0 : 0.0;
+  const Matrix on_allowed = problem.gains.cwiseProduct(allowed);
+  const double scale = on_allowed.cwiseAbs().maxCoeff();
+  const double top = (allowed.array() > 0).select(problem.gains.array(), -kInf).maxCoeff();
+  const double bottom = (allowed.array() > 0).select(problem.gains.array(), kInf).minCoeff();
+  if (top - bottom <= 1e-10 * std::max(scale, 1e-300))
+    return "the gains are the same on every allowed cell, so every allocation has the same "
+           "total gain and the gains say nothing about a temperature";
   const Matrix residual = additive_residual(problem.gains, allowed);
-  const double scale = problem.gains.cwiseProduct(allowed).cwiseAbs().maxCoeff();
-  if (residual.cwiseAbs().maxCoeff() <= 1e-10 * std::max(scale, 1e-300)) {
-    throw InputError(gains_source,
-                     "the gains are additive in rows and columns on the allowed cells "
-                     "(gain_ij = a_i + b_j), so every allocation with these marginals has the "
-                     "same total gain and the gains say nothing about a temperature");
-  }
+  if (residual.cwiseAbs().maxCoeff() <= 1e-10 * std::max(scale, 1e-300))
+    return "the gains are additive in rows and columns on the allowed cells "
+           "(gain_ij = a_i + b_j), so every allocation with these marginals has the "
+           "same total gain and the gains say nothing about a temperature";
+  return "";
+}
+
+void require_informative_gains(const TransportProblem& problem, const std::string& gains_source) {
+  const std::string reason = uninformative_gains_reason(problem);
+  if (!reason.empty()) throw InputError(gains_source, reason);
 }
 
 namespace {
 
-// The estimate for gains of order one (estimate_temperature rescales).
+// The estimate for gains of order one (estimate_temperature rescales);
+// `solved_exact`, when given, is the exact coupling at that scale.
 TemperatureResult estimate_at_unit_scale(const ObservedAllocation& o,
-                                         const TemperatureOptions& options) {
+                                         const TemperatureOptions& options,
+                                         const ExactResult* solved_exact) {
   TemperatureResult result;
   result.confidence = options.confidence;
   result.units = o.units;
   result.standard_error = result.ci_low = result.ci_high = kNaN;
   result.observed_gain = o.observed_gain();
 
-  const ExactResult exact = solve_exact(o.problem);
+  std::optional<ExactResult> own_exact;
+  if (!solved_exact) own_exact = solve_exact(o.problem);
+  const ExactResult& exact = solved_exact ? *solved_exact : *own_exact;
   const MarginalFit flat = independent_coupling(o.problem, options.sinkhorn_tolerance);
   result.solves = 1;
   if (!exact.optimal() || !flat.converged) {
@@ -523,13 +530,21 @@ TemperatureResult estimate_at_unit_scale(const ObservedAllocation& o,
 }  // namespace
 
 TemperatureResult estimate_temperature(const ObservedAllocation& o,
-                                       const TemperatureOptions& options) {
+                                       const TemperatureOptions& options,
+                                       const ExactResult* solved_exact) {
   options.validate();
   const double scale = gains_scale(o);
   ObservedAllocation unit = o;
   unit.problem.gains /= scale;
   require_informative_gains(unit.problem, o.sources.gains);
-  TemperatureResult result = estimate_at_unit_scale(unit, options);
+  // The exact coupling does not change with the scale of the gains; its gain does.
+  std::optional<ExactResult> unit_exact;
+  if (solved_exact) {
+    unit_exact = *solved_exact;
+    unit_exact->total_gain /= scale;
+  }
+  TemperatureResult result =
+      estimate_at_unit_scale(unit, options, unit_exact ? &*unit_exact : nullptr);
   if (!rescale(result, scale))
     throw InputError(o.sources.gains,
                      "epsilon or its interval leaves the range of double precision at the scale "
@@ -564,6 +579,10 @@ std::string TemperatureResult::brief() const {
       return "no temperature: the allocation gains no more than partners chosen at random";
     case TemperatureStatus::not_converged:
       return "not converged: " + message;
+    case TemperatureStatus::no_gains:
+      return "not estimated: no gains given";
+    case TemperatureStatus::not_identified:
+      return "not identified: " + message;
   }
   return "";
 }

@@ -15,6 +15,8 @@
 #include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/analysis/report_exports.hpp"
+#include "allocsim/core/label_alignment.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
@@ -61,22 +63,133 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
   return options;
 }
 
+ValueReading read_value_reading(const po::variables_map& vm) {
+  ValueReading reading;
+  try {
+    if (vm.count("values")) reading.kind = value_kind_from_string(vm["values"].as<std::string>());
+    if (vm.count("units")) {
+      reading.units = vm["units"].as<double>();
+      if (!(reading.units > 0)) throw InputError("units", "must be a number > 0");
+      if (!vm.count("values")) reading.kind = ValueKind::shares;  // N units behind shares
+    }
+    reading.validate();
+  } catch (const InputError& e) {
+    throw InputError("--" + e.where(), std::string(e.what()).substr(e.where().size() + 2));
+  }
+  return reading;
+}
+
 // ---- CSV input ----
 
+// The allocation's labels are the reference every other file is matched to.
+LabeledMatrix read_allocation(const std::string& path, const po::variables_map& vm) {
+  CsvReadOptions reading;
+  if (vm.count("missing")) {
+    if (vm["missing"].as<std::string>() != "zero")
+      throw InputError("--missing", "'" + vm["missing"].as<std::string>() + "' is not zero");
+    reading.missing_as_zero = true;
+  }
+  LabeledMatrix allocation = read_matrix_csv(path, reading);
+  require_unique_labels(allocation.row_labels, path, "row");
+  require_unique_labels(allocation.column_labels, path, "column");
+  return allocation;
+}
+
+// A gains (or other agents x partners) file put in the allocation's order.
+Matrix read_aligned_matrix(const std::string& path, const LabeledMatrix& allocation,
+                           AllocationInput& in) {
+  LabeledMatrix other = read_matrix_csv(path);
+  in.matching.push_back(align_matrix(allocation, in.sources.allocation, other, path));
+  return other.values;
+}
+
+AccessMask read_aligned_access(const std::string& path, const LabeledMatrix& allocation,
+                               AllocationInput& in) {
+  LabeledMatrix access = read_matrix_csv(path);
+  access.values = read_access_csv(path).cast<double>();  // checks 0/1 with the cell named
+  in.matching.push_back(align_matrix(allocation, in.sources.allocation, access, path));
+  return access.values.cast<std::uint8_t>();
+}
+
 AllocationInput read_csv_input(const po::variables_map& vm) {
-  if (!vm.count("allocation") || !vm.count("gains"))
-    throw InputError("allocsim analyze",
-                     "give --allocation P.csv and --gains G.csv, or a results file");
+  if (!vm.count("allocation"))
+    throw InputError("allocsim analyze", "give --allocation P.csv [--gains G.csv], or a results file");
   AllocationInput in;
   in.sources.allocation = vm["allocation"].as<std::string>();
-  in.sources.gains = vm["gains"].as<std::string>();
-  in.allocation = read_matrix_csv(in.sources.allocation).values;
-  in.gains = read_matrix_csv(in.sources.gains).values;
+  const LabeledMatrix allocation = read_allocation(in.sources.allocation, vm);
+  in.allocation = allocation.values;
+  in.agent_labels = allocation.row_labels;
+  in.partner_labels = allocation.column_labels;
+  if (vm.count("gains")) {
+    in.sources.gains = vm["gains"].as<std::string>();
+    in.gains = read_aligned_matrix(in.sources.gains, allocation, in);
+  }
   if (vm.count("access")) {
     in.sources.access = vm["access"].as<std::string>();
-    in.access = read_access_csv(in.sources.access);
+    in.access = read_aligned_access(in.sources.access, allocation, in);
   }
+  in.reading = read_value_reading(vm);
   return in;
+}
+
+// ---- outputs of one CSV analysis ----
+
+void print_report(const AllocationReport& report,
+                  const std::optional<GainsReconstructionReport>& reconstruction,
+                  const po::variables_map& vm) {
+  if (vm.count("json")) {
+    JsonObject json = allocation_report_json(report);
+    if (reconstruction) json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
+    std::cout << json.str() << "\n";
+  } else {
+    print_allocation_report(std::cout, report);
+    if (reconstruction) print_gains_reconstruction(std::cout, *reconstruction);
+  }
+  if (!vm.count("json")) return;  // the text report says both
+  if (!report.observed.warning.empty()) std::cerr << "warning: " << report.observed.warning << "\n";
+  if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
+}
+
+void write_exports(const AllocationReport& report, const po::variables_map& vm) {
+  if (!vm.count("export-dir")) return;
+  const std::vector<std::string> written = export_report(report, vm["export-dir"].as<std::string>());
+  std::cerr << "wrote " << written.size() << " files into " << vm["export-dir"].as<std::string>()
+            << "\n";
+}
+
+// `--save obs.h5`: a results file with one run holding the field matrix, its
+// labels, the gains when given, and the analysis, like a simulated run.
+void save_results(const AllocationInput& in, const AllocationReport& report,
+                  const po::variables_map& vm) {
+  if (!vm.count("save")) return;
+  const std::string path = vm["save"].as<std::string>();
+  std::string text = "# a field matrix analysed by allocsim analyze (no experiment)\n";
+  text += "# allocation = " + in.sources.allocation + "\n";
+  if (in.gains) text += "# gains = " + in.sources.gains + "\n";
+  ResultsFile file(path, text, ALLOCSIM_VERSION);
+  RunWriter run = file.create_run(run_name(0));
+  run.set_integer(layout::kRunIndex, 0);
+  run.set_text(layout::kObservedAllocation, in.sources.allocation);
+  if (in.gains) run.set_text(layout::kObservedGains, in.sources.gains);
+  if (in.access) run.set_text(layout::kObservedAccess, in.sources.access);
+  run.write_labels(in.agent_labels, in.partner_labels);
+  run.write_matrix(layout::kTotal, in.allocation);
+  if (in.gains) {
+    TransportProblem scenario;
+    scenario.gains = *in.gains;
+    scenario.budgets = in.allocation.rowwise().sum();
+    scenario.capacities = in.allocation.colwise().sum().transpose();
+    scenario.access = in.access;
+    run.write_scenario(scenario);
+  }
+  run.write_report(report);
+  run.set_text(layout::kStatus, layout::kStatusComplete);
+  file.commit();
+  std::cerr << "saved the matrix and its analysis as run " << run_name(0) << " of " << path << "\n";
+}
+
+int exit_code(const AllocationReport& report) {
+  return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;
 }
 
 // ---- results files ----
@@ -86,12 +199,22 @@ AllocationInput read_csv_input(const po::variables_map& vm) {
 AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   reader.require_run(run);
   const std::string where = reader.path() + ":/" + layout::kRuns + "/" + run + "/";
-  const TransportProblem scenario = reader.read_scenario(run);
   AllocationInput in;
   in.sources = {where + layout::kTotal, where + layout::kGains, where + layout::kAccess};
-  in.gains = scenario.gains;
-  in.access = scenario.access;
+  if (reader.has(run, layout::kGains)) {
+    const TransportProblem scenario = reader.read_scenario(run);
+    in.gains = scenario.gains;
+    in.access = scenario.access;
+  }
   in.allocation = reader.read_matrix(run, layout::kTotal);
+  in.agent_labels = reader.read_texts(run, layout::kAgentLabels);
+  in.partner_labels = reader.read_texts(run, layout::kPartnerLabels);
+  // A field matrix read as shares stays shares (with its N).
+  const Attributes analysis = reader.group_attributes(run, layout::kAnalysis);
+  if (attribute_text(analysis, layout::kValueReading) == "shares") {
+    in.reading.kind = ValueKind::shares;
+    in.reading.units = attribute_number(analysis, layout::kValueUnits).value_or(0);
+  }
   return in;
 }
 
@@ -151,9 +274,20 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
 int analyze_command(const Arguments& args) {
   po::options_description options("options");
   options.add_options()
-      ("allocation", po::value<std::string>(), "CSV matrix of the allocation (agents x partners); "
-                                               "whole numbers are read as counts")
-      ("gains", po::value<std::string>(), "CSV matrix of gains (agents x partners)")
+      ("allocation", po::value<std::string>(), "CSV matrix of the allocation (agents x partners), "
+                                               "labels optional; rows and columns of the other "
+                                               "files are matched to its labels")
+      ("gains", po::value<std::string>(), "CSV matrix of gains (agents x partners); optional: "
+                                          "without it no temperature, everything else")
+      ("values", po::value<std::string>(), "how the allocation's cells are read: counts (whole "
+                                           "units) | shares (default: counts when every cell is whole)")
+      ("units", po::value<double>(), "shares: the number N of independent units behind them "
+                                     "(for standard errors and intervals)")
+      ("export-dir", po::value<std::string>(), "write labelled CSV files of the analysis into this folder")
+      ("missing", po::value<std::string>(), "zero: read empty and NA cells of the allocation as 0 "
+                                            "(default: they are an error naming the cell)")
+      ("save", po::value<std::string>(), "write the matrix, labels, gains and analysis as a results "
+                                         "file (one run) for inspect, plot and analyze")
       ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
       ("results", po::value<std::string>(), "a results file (HDF5) to analyse instead of CSV files")
       ("run", po::value<std::string>(), "results file: analyse only this run (e.g. run-000000)")
@@ -172,11 +306,15 @@ int analyze_command(const Arguments& args) {
   positional.add("results", 1);
   po::variables_map vm;
   if (!parse_or_help(args, options, positional, vm, "analyze",
-                     "--allocation P.csv --gains G.csv [--access A.csv] [--json]\n"
+                     "--allocation P.csv [--gains G.csv] [--access A.csv] [--values counts|shares]\n"
+                     "       [--units N] [--nulls MODEL] [--export-dir D] [--save obs.h5] [--json]\n"
                      "       allocsim analyze results.h5 [--run NAME] [--json] [--write]"))
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
+    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing"})
+      if (vm.count(csv_only))
+        throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))
       throw InputError("allocsim analyze",
                        "give either a results file or --allocation/--gains, not both");
@@ -184,18 +322,15 @@ int analyze_command(const Arguments& args) {
   }
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
-  const AllocationReport report = analyze_allocation(read_csv_input(vm), analyze_options);
+  const AllocationInput input = read_csv_input(vm);
+  const AllocationReport report = analyze_allocation(input, analyze_options);
   const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
-  if (vm.count("json")) {
-    JsonObject json = allocation_report_json(report);
-    if (reconstruction) json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
-    std::cout << json.str() << "\n";
-  } else {
-    print_allocation_report(std::cout, report);
-    if (reconstruction) print_gains_reconstruction(std::cout, *reconstruction);
-  }
-  if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
-  return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;
+  print_report(report, reconstruction, vm);
+  write_exports(report, vm);
+  if (reconstruction && vm.count("export-dir"))
+    export_gains_reconstruction(*reconstruction, vm["export-dir"].as<std::string>());
+  save_results(input, report, vm);
+  return exit_code(report);
 }
 
 }  // namespace allocsim::cli

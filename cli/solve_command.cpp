@@ -11,6 +11,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
+#include "allocsim/core/label_alignment.hpp"
 #include "allocsim/core/memory_limit.hpp"
 #include "allocsim/core/output_file.hpp"
 #include "commands.hpp"
@@ -25,20 +26,23 @@ struct SolveInputs {
   std::vector<std::string> agent_labels, partner_labels;
 };
 
-// Labels given in two files must agree, or the rows were probably misaligned.
-void check_labels(const std::vector<std::string>& matrix_labels,
-                  const std::vector<std::string>& vector_labels, const std::string& vector_file,
-                  const std::string& matrix_file) {
-  if (matrix_labels.empty() || vector_labels.empty() || matrix_labels.size() != vector_labels.size())
-    return;
-  for (std::size_t k = 0; k < matrix_labels.size(); ++k) {
-    if (matrix_labels[k] != vector_labels[k]) {
-      throw InputError(vector_file, "label '" + vector_labels[k] + "' at position " +
-                                        std::to_string(k + 1) + " differs from '" +
-                                        matrix_labels[k] + "' in " + matrix_file +
-                                        "; put both files in the same order");
-    }
-  }
+// Budgets and capacities matched to the gains' rows and columns by label
+// (core/label_alignment.hpp); the access matrix on both sides.
+Vector read_aligned_vector(const std::string& path, const std::vector<std::string>& labels,
+                           Eigen::Index count, const std::string& gains_file, const char* side,
+                           const char* noun) {
+  const LabeledVector v = read_vector_csv(path);
+  const LabelAlignment a = align_labels({labels, count, gains_file, ""},
+                                        {v.labels, v.values.size(), path, noun}, side);
+  return reorder_entries(v.values, a.order);
+}
+
+AccessMask read_aligned_access(const std::string& path, const LabeledMatrix& gains,
+                               const std::string& gains_file) {
+  LabeledMatrix access = read_matrix_csv(path);
+  access.values = read_access_csv(path).cast<double>();  // checks 0/1 with the cell named
+  align_matrix(gains, gains_file, access, path);
+  return access.values.cast<std::uint8_t>();
 }
 
 SolveInputs read_inputs(const po::variables_map& vm) {
@@ -47,19 +51,20 @@ SolveInputs read_inputs(const po::variables_map& vm) {
   in.sources.budgets = vm["budgets"].as<std::string>();
   in.sources.capacities = vm["capacities"].as<std::string>();
   LabeledMatrix gains = read_matrix_csv(in.sources.gains);
-  const LabeledVector budgets = read_vector_csv(in.sources.budgets);
-  const LabeledVector capacities = read_vector_csv(in.sources.capacities);
-  check_labels(gains.row_labels, budgets.labels, in.sources.budgets, in.sources.gains);
-  check_labels(gains.column_labels, capacities.labels, in.sources.capacities, in.sources.gains);
-  in.problem.gains = std::move(gains.values);
-  in.problem.budgets = budgets.values;
-  in.problem.capacities = capacities.values;
-  in.agent_labels = std::move(gains.row_labels);
-  in.partner_labels = std::move(gains.column_labels);
+  require_unique_labels(gains.row_labels, in.sources.gains, "row");
+  require_unique_labels(gains.column_labels, in.sources.gains, "column");
+  in.problem.budgets = read_aligned_vector(in.sources.budgets, gains.row_labels,
+                                           gains.values.rows(), in.sources.gains, "row", "budgets");
+  in.problem.capacities = read_aligned_vector(in.sources.capacities, gains.column_labels,
+                                              gains.values.cols(), in.sources.gains, "column",
+                                              "capacities");
   if (vm.count("access")) {
     in.sources.access = vm["access"].as<std::string>();
-    in.problem.access = read_access_csv(in.sources.access);
+    in.problem.access = read_aligned_access(in.sources.access, gains, in.sources.gains);
   }
+  in.problem.gains = std::move(gains.values);
+  in.agent_labels = std::move(gains.row_labels);
+  in.partner_labels = std::move(gains.column_labels);
   if (vm.count("rescale")) {
     validate(in.problem, in.sources, std::numeric_limits<double>::infinity());
     rescale_capacities(in.problem);

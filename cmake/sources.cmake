@@ -9,6 +9,7 @@ allocsim_layer(core
     core/csv_text.cpp
     core/csv_write.cpp
     core/json.cpp
+    core/label_alignment.cpp
     core/memory_limit.cpp
     core/problem.cpp
     core/random.cpp
@@ -34,6 +35,7 @@ allocsim_layer(analysis
     analysis/gains_reconstruction.cpp
     analysis/allocation_report.cpp
     analysis/thread_team.cpp
+    analysis/report_exports.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
@@ -80,6 +82,7 @@ allocsim_layer(plots
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/null_histogram.cpp
     plots/results_figures.cpp
     plots/ordering.cpp
     plots/scores.cpp

@@ -9,8 +9,9 @@ namespace allocsim::plots {
 namespace {
 
 constexpr std::size_t kMaxPanels = 4;
-constexpr std::size_t kMaxTickLabels = 40;
-constexpr std::size_t kTickLabelChars = 12;  // longer names are cut, with an ellipsis
+constexpr std::size_t kMaxTickLabels = 60;
+constexpr std::size_t kSmallTickLabels = 30;  // above: a smaller font
+constexpr std::size_t kTickLabelChars = 16;  // longer names are cut, with an ellipsis
 // Layout: fractions of the canvas height, pixels across (so the colour bar
 // and its label keep their room at any width); named ticks need more room.
 constexpr double kTop = 0.83;
@@ -94,7 +95,8 @@ std::string tick_command(const char* axis, const std::vector<std::string>& label
   std::string command = std::string("set ") + axis + "tics";
   if (!show) return command + " autofreq format ''\n";
   if (!named(labels, order)) return command + " autofreq format '%g'\n";
-  command += std::string(axis) == "x" ? " rotate by 60 right font ',9' (" : " font ',9' (";
+  const std::string font = order.size() > kSmallTickLabels ? "',7'" : "',9'";
+  command += std::string(axis) == "x" ? " rotate by 60 right font " + font + " (" : " font " + font + " (";
   for (std::size_t k = 0; k < order.size(); ++k) {
     command += (k ? ", " : "") + quote_gnuplot_tic_label(shortened(labels[static_cast<std::size_t>(order[k])], kTickLabelChars)) + " " +
                std::to_string(k + 1);
@@ -130,15 +132,24 @@ std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std
      << "set xrange [0.5:" << number(m + 0.5) << "]\nset yrange [" << number(n + 0.5) << ":0.5]\n"
      << "set tmargin at screen " << number(kTop) << "\nset bmargin at screen " << number(bottom) << "\n"
      << "unset grid\nunset key\nset border 15\nset tics front\nunset mxtics\nunset mytics\n"
-     << "set xlabel " << quote_gnuplot_text("partners j, by " + figure.ordering_name) << "\n";
+     << "unset xlabel\n"
+     << "set label 1 " << quote_gnuplot_text("partners j, by " + figure.ordering_name)
+     << " at screen " << number((left + panels_right) / 2) << ", screen 0.025 center\n";
   if (figure.log_colour_scale) {
     gp << "set logscale cb\nset cbrange [" << number(floor) << ":" << number(largest) << "]\n"
        << "set format cb '10^{%L}'\n"
-       << "set cblabel " << markup("share of all units (log scale; white: below " +
-                                   number(figure.smallest_share) + " of the largest)") << "\n";
+       << "set cblabel "
+       << (figure.colour_label.empty()
+               ? markup("share of all units (log scale; white: below " +
+                        number(figure.smallest_share) + " of the largest)")
+               : quote_gnuplot_text(figure.colour_label))
+       << "\n";
   } else {
     gp << "set cbrange [0:" << number(largest) << "]\nset format cb '%g'\n"
-       << "set cblabel " << markup("share of all units (white: none)") << "\n";
+       << "set cblabel "
+       << (figure.colour_label.empty() ? markup("share of all units (white: none)")
+                                       : quote_gnuplot_text(figure.colour_label))
+       << "\n";
   }
   const std::string drawn = figure.log_colour_scale ? "($3 >= " + number(floor) + " ? $3 : NaN)"
                                                     : "($3 > 0 ? $3 : NaN)";
@@ -151,7 +162,7 @@ std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std
        << tick_command("x", figure.column_labels, order.columns, true)
        << tick_command("y", figure.row_labels, order.rows, p == 0)
        << "set ylabel " << (p == 0 ? quote_gnuplot_text("agents i, by " + figure.ordering_name) : "''") << "\n";
-    if (p + 1 == k) {
+    if (p + 1 == k && figure.colour_bar) {
       gp << "set colorbox user origin screen " << number(panels_right + gap * 0.6) << ", screen "
          << number(bottom) << " size screen " << number(kColourBarPixels * pixel) << ", screen "
          << number(kTop - bottom) << "\n";

@@ -96,14 +96,46 @@ Ordering stored_ordering(const ResultsReader& reader, const std::string& run) {
   return ordering;
 }
 
+// A field matrix saved by `analyze --save` (it names the file it came from).
+bool is_observed(const RunRecord& run) { return run.text(layout::kObservedAllocation).has_value(); }
+
+std::string file_name_of(const std::string& path) {
+  return std::filesystem::path(path).filename().string();
+}
+
+// "observed matrix (960 units)" or "observed matrix (shares)".
+std::string observed_panel_title(const RunRecord& run, const Matrix& values) {
+  const bool shares = run.text(layout::kValueReading).value_or("counts") == "shares";
+  const double units = run.number(layout::kValueUnits).value_or(0);
+  if (!shares) return "observed matrix (" + count_text(values.sum()) + " units)";
+  return units > 0 ? "observed matrix (shares of " + count_text(units) + " units)"
+                   : "observed matrix (shares)";
+}
+
+// Rows and columns of `reader`'s run in nested order (stored by the analysis), or none.
+Ordering stored_nested_ordering(const ResultsReader& reader, const std::string& run) {
+  Ordering ordering;
+  for (const auto& [path, target] : {std::pair{layout::kNestedRowOrder, &ordering.rows},
+                                     std::pair{layout::kNestedColumnOrder, &ordering.columns}}) {
+    if (!reader.has(run, path)) return {};
+    for (const double v : reader.read_vector(run, path)) target->push_back(static_cast<long>(v));
+  }
+  return ordering;
+}
+
 void draw_heatmaps(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
   const std::string figure = "allocation heatmaps of " + run.name;
   if (!reader.has(run.name, layout::kTotal)) return context.skip(figure, "no allocation/total");
   const Matrix emergent = reader.read_matrix(run.name, layout::kTotal);
   if (!(emergent.sum() > 0)) return context.skip(figure, "no units in allocation/total");
+  const bool observed = is_observed(run);
   AllocationHeatmaps heatmaps;
-  heatmaps.title = "allocations of " + run_caption(run);
-  heatmaps.panels.push_back({"emergent allocation (" + count_text(emergent.sum()) + " units)", emergent});
+  heatmaps.title = observed ? "observed matrix " + file_name_of(*run.text(layout::kObservedAllocation)) +
+                                  (run.text(layout::kObservedGains) ? " and its couplings" : "")
+                            : "allocations of " + run_caption(run);
+  heatmaps.panels.push_back({observed ? observed_panel_title(run, emergent)
+                                      : "emergent allocation (" + count_text(emergent.sum()) + " units)",
+                             emergent});
   const auto epsilon = run.number(layout::kEpsilon);
   std::string missing;
   if (const auto entropic = same_shape(reader, run.name, layout::kEntropicCoupling, emergent)) {
@@ -116,17 +148,72 @@ void draw_heatmaps(PlotContext& context, const ResultsReader& reader, const RunR
   } else {
     missing += (missing.empty() ? "" : ", ") + std::string(layout::kExactCoupling);
   }
-  if (!missing.empty()) {
+  if (!missing.empty() && !(observed && !run.text(layout::kObservedGains))) {
     context.notes << "note: " << run.name << " has no " << missing
               << "; its heatmaps show what is there (run 'allocsim analyze' to add the couplings)\n";
   }
-  heatmaps.ordering = stored_ordering(reader, run.name);
+  heatmaps.ordering = observed ? stored_nested_ordering(reader, run.name)
+                              : stored_ordering(reader, run.name);
   if (!heatmaps.ordering.rows.empty())
-    heatmaps.ordering_name = run.text(layout::kOrderName).value_or("the stored ordering");
+    heatmaps.ordering_name = observed ? "nested order (number of links)"
+                                      : run.text(layout::kOrderName).value_or("the stored ordering");
   heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);
   heatmaps.column_labels = reader.read_texts(run.name, layout::kPartnerLabels);
   context.record(draw_allocation_heatmaps(
       heatmaps, context.stem(file_name_part(run.name) + "-allocations"), context.options));
+}
+
+// The 0/1 matrix the structure metrics used, in nested order.
+void draw_links(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
+  if (!is_observed(run) || !reader.has(run.name, layout::kLinks)) return;
+  const Matrix links = reader.read_matrix(run.name, layout::kLinks);
+  if (!(links.sum() > 0)) return context.skip("links of " + run.name, "no link");
+  AllocationHeatmaps heatmaps;
+  heatmaps.title = "links of " + file_name_of(*run.text(layout::kObservedAllocation)) + ": " +
+                   run.text(layout::kBinarize).value_or("binarised");
+  heatmaps.panels.push_back({count_text(links.sum()) + " links of " + count_text(static_cast<double>(links.size())) +
+                                 " cells",
+                             links});
+  heatmaps.ordering = stored_nested_ordering(reader, run.name);
+  heatmaps.ordering_name = "nested order (number of links)";
+  heatmaps.log_colour_scale = false;
+  heatmaps.colour_bar = false;
+  heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);
+  heatmaps.column_labels = reader.read_texts(run.name, layout::kPartnerLabels);
+  context.record(draw_allocation_heatmaps(heatmaps, context.stem(file_name_part(run.name) + "-links"),
+                                          context.options));
+}
+
+// NODF (and WNODF) of the run against the null ensemble stored with it.
+void draw_null_distributions(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
+  NullHistograms figure;
+  for (const auto& [metric, display] : {std::pair<std::string, std::string>{layout::kNodf, "NODF"},
+                                        std::pair<std::string, std::string>{layout::kWnodf, "WNODF"}}) {
+    const std::string values_path = std::string(layout::kAnalysis) + "/" + metric + layout::kNullValuesSuffix;
+    const auto observed = run.number(metric);
+    if (!reader.has(run.name, values_path) || !observed) continue;
+    const Vector values = reader.read_vector(run.name, values_path);
+    const std::string prefix = metric + "_";
+    NullDistribution panel;
+    panel.metric = display;
+    panel.model = run.text(prefix + layout::kNullModel).value_or("null");
+    panel.values.assign(values.data(), values.data() + values.size());
+    panel.observed = *observed;
+    panel.z_score = run.number(prefix + layout::kZScore).value_or(kNoValue);
+    panel.p_upper = run.number(prefix + layout::kPUpper).value_or(kNoValue);
+    panel.p_two_sided = run.number(prefix + layout::kPTwoSided).value_or(kNoValue);
+    figure.panels.push_back(panel);
+  }
+  if (figure.panels.empty()) {
+    if (is_observed(run))
+      context.notes << "note: " << run.name << " holds no null comparison; analyze with --nulls "
+                    << "curveball|bicm|fixed-margins --save to draw one\n";
+    return;
+  }
+  figure.title = (is_observed(run) ? file_name_of(*run.text(layout::kObservedAllocation)) : run.name) +
+                 " against its null ensemble";
+  context.record(draw_null_histograms(figure, context.stem(file_name_part(run.name) + "-nulls"),
+                                      context.options));
 }
 
 void draw_trajectories(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
@@ -248,6 +335,9 @@ std::vector<std::string> draw_results_figures(const ResultsReader& reader,
   }
   const RunRecord& chosen = chosen_run(runs, request.run, reader.path());
   draw_heatmaps(context, reader, chosen);
+  draw_links(context, reader, chosen);
+  draw_null_distributions(context, reader, chosen);
+  if (is_observed(chosen)) return context.written;  // one matrix: no trajectories, no sweeps
   draw_trajectories(context, reader, chosen);
   draw_metric(context, runs, layout::kNodf, "NODF");
   draw_metric(context, runs, layout::kWnodf, "WNODF");

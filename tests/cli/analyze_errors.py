@@ -17,7 +17,6 @@ CASES = [
     ("non-finite entry", {"P.csv": "50,10,12\n8,nan,15\n11,9,45\n"}, [], 2, ["P.csv:2", "finite"]),
     ("shape mismatch", {"P.csv": "50,10\n8,40\n11,9\n"}, [], 2, ["P.csv", "3 x 2", "3 x 3"]),
     ("all zero", {"P.csv": "0,0,0\n0,0,0\n0,0,0\n"}, [], 2, ["P.csv", "no positive entry"]),
-    ("additive gains", {"G.csv": "1,2,3\n2,3,4\n5,6,7\n"}, [], 2, ["G.csv", "additive"]),
     ("weight on a forbidden pair", {"A.csv": "1,0,1\n1,1,1\n1,1,1\n"}, ["--access", "A.csv"], 2, ["P.csv", "row 1, column 2", "forbids"]),
     ("missing gains", {}, ["--gains", "nowhere.csv"], 2, ["nowhere.csv"]),
     ("bad confidence", {}, ["--confidence", "1.5"], 2, ["--confidence"]),

@@ -25,7 +25,7 @@ CASES = [
     ("too few budgets", {"r.csv": "1\n"}, [], 2, ["r.csv", "1 budgets", "2 rows"]),
     ("too many capacities", {"c.csv": "0.25,0.25,0.25,0.25\n"}, [], 2, ["c.csv", "4 capacities"]),
     ("unbalanced totals", {"c.csv": "0.2,0.3,0.6\n"}, [], 2, ["--rescale", "total"]),
-    ("access of the wrong shape", {"A.csv": "1,1\n1,1\n"}, ["--access", "A.csv"], 2, ["A.csv", "2x2"]),
+    ("access of the wrong shape", {"A.csv": "1,1\n1,1\n"}, ["--access", "A.csv"], 2, ["A.csv", "2 x 2", "2 x 3"]),
     ("access not 0/1", {"A.csv": "1,1,2\n1,1,1\n"}, ["--access", "A.csv"], 2, ["A.csv", "holds 2"]),
     ("agent without partner", {"A.csv": "0,0,0\n1,1,1\n"}, ["--access", "A.csv"], 1, ["A.csv", "infeasible", "agent 1"]),
     ("budgets beyond reachable capacity", {"A.csv": "1,0,0\n1,1,1\n"}, ["--access", "A.csv"], 1, ["A.csv", "infeasible"]),

@@ -60,6 +60,7 @@
 #include <string>
 
 #include "allocsim/analysis/entropic_transport.hpp"
+#include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/analysis/observed_allocation.hpp"
 #include "allocsim/core/matrix.hpp"
 
@@ -83,9 +84,12 @@ enum class TemperatureStatus {
   estimated,               // a finite epsilon > 0
   at_optimum,              // observed gain >= the exact optimum's: epsilon = 0
   not_explained_by_noise,  // observed gain <= the independent coupling's: epsilon = infinity
-  not_converged            // a solve or the search failed; see message
+  not_converged,           // a solve or the search failed; see message
+  no_gains,                // no gains were given: nothing to estimate (set by the report)
+  not_identified           // the gains are additive or constant: they carry no information
 };
-// Words: "estimated", "at_optimum", "not_explained_by_noise", "not_converged".
+// Words: "estimated", "at_optimum", "not_explained_by_noise", "not_converged",
+// "no_gains", "not_identified".
 std::string to_string(TemperatureStatus status);
 TemperatureStatus temperature_status_from_string(const std::string& text);
 
@@ -115,16 +119,22 @@ struct TemperatureResult {
 };
 
 // Throws InputError("<gains source>", ...) when the gains are additive on the
-// allowed cells of `observed`.
+// allowed cells of `observed`. `exact`, when given, is the exact coupling of
+// observed.problem already solved (it is not solved again).
 TemperatureResult estimate_temperature(const ObservedAllocation& observed,
-                                       const TemperatureOptions& options = {});
+                                       const TemperatureOptions& options = {},
+                                       const ExactResult* exact = nullptr);
 
 // The (1 - alpha) quantile of chi-square with one degree of freedom for
 // confidence = 1 - alpha, by inverting erfc (for tests and messages).
 double chi_square_1_quantile(double confidence);
 
-// Throws InputError(gains source) with the sentence above when the gains of
-// `problem` are additive (to 1e-10 of their scale) on its allowed cells.
+// Why the gains of `problem` carry no information about a temperature (they
+// are constant, or additive to 1e-10 of their scale, on its allowed cells),
+// or "" when they do.
+std::string uninformative_gains_reason(const TransportProblem& problem);
+
+// Throws InputError(gains source) with that reason when it is not empty.
 void require_informative_gains(const TransportProblem& problem, const std::string& gains_source);
 
 }  // namespace allocsim

@@ -93,11 +93,36 @@ struct AllocationHeatmaps {
   std::vector<std::string> row_labels, column_labels;  // optional; drawn as tick labels up to 40 of them
   bool log_colour_scale = true;  // log10 colours from smallest_share * max to max; smaller cells are white
   double smallest_share = 1e-4;  // in (0, 1); of the largest share over all panels
+  std::string colour_label;      // empty: "share of all units ..."
+  bool colour_bar = true;        // false: no colour bar (e.g. a 0/1 matrix drawn in one colour)
 };
 
 // Draws the panels left to right with one colour bar (share of all units).
+// `colour_label`, when given, replaces the colour bar's label (e.g. for 0/1 links).
 std::string draw_allocation_heatmaps(const AllocationHeatmaps& figure, const std::string& stem,
                                      const FigureOptions& options = {});
+
+// ---------------------------------------------------------------------------
+// A structure metric of an observed matrix against its null ensemble: a
+// histogram of the null values with the observed value marked, and its
+// z-score and empirical p-values in the panel title. One panel per metric.
+
+struct NullDistribution {
+  std::string metric;          // e.g. "NODF"
+  std::string model;           // e.g. "curveball"
+  std::vector<double> values;  // the metric on each null matrix (non-finite ones are left out)
+  double observed = 0;
+  double z_score = 0;          // NaN when the null values do not vary
+  double p_upper = 0, p_two_sided = 0;
+};
+
+struct NullHistograms {
+  std::string title;
+  std::vector<NullDistribution> panels;  // 1 or 2
+};
+
+std::string draw_null_histograms(const NullHistograms& figure, const std::string& stem,
+                                 const FigureOptions& options = {});
 
 // ---------------------------------------------------------------------------
 // Points with optional intervals, used by the figures against temperature.

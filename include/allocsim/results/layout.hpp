@@ -50,6 +50,13 @@ inline constexpr char kExactCoupling[] = "analysis/exact";
 inline constexpr char kEntropicCoupling[] = "analysis/entropic";
 inline constexpr char kRowOrder[] = "analysis/row_order";
 inline constexpr char kColumnOrder[] = "analysis/column_order";
+// Nested order (decreasing degree; input indices, left-out rows and columns last).
+inline constexpr char kNestedRowOrder[] = "analysis/nested_row_order";
+inline constexpr char kNestedColumnOrder[] = "analysis/nested_column_order";
+// The binarised allocation the structure metrics used (uint8, input shape).
+inline constexpr char kLinks[] = "analysis/links";
+// The metric of each null matrix, "<metric>_null_values", e.g. "nodf_null_values".
+inline constexpr char kNullValuesSuffix[] = "_null_values";
 
 // Attributes of a run group (besides every experiment key, by its name).
 inline constexpr char kSeed[] = "seed";
@@ -60,6 +67,10 @@ inline constexpr char kFeasible[] = "feasible";
 inline constexpr char kSeconds[] = "seconds";
 inline constexpr char kUnplacedUnits[] = "unplaced_units";
 inline constexpr char kUnitsAfterBurnIn[] = "units_after_burn_in";
+// A field matrix saved by `analyze --save`: the files it was read from.
+inline constexpr char kObservedAllocation[] = "observed_allocation";
+inline constexpr char kObservedGains[] = "observed_gains";
+inline constexpr char kObservedAccess[] = "observed_access";
 // Values of the status attribute.
 inline constexpr char kStatusRunning[] = "running";
 inline constexpr char kStatusComplete[] = "complete";
@@ -80,6 +91,17 @@ inline constexpr char kSpectralRadius[] = "spectral_radius";
 inline constexpr char kConnectance[] = "connectance";
 inline constexpr char kBinarize[] = "binarize";
 inline constexpr char kOrderName[] = "order_name";
+// How the allocation's values were read: "counts" or "shares", and N (0 = unknown).
+inline constexpr char kValueReading[] = "value_reading";
+inline constexpr char kValueUnits[] = "value_units";
+// Weight concentration (analysis/allocation_report.hpp).
+inline constexpr char kShareOnForestLinks[] = "share_on_forest_links";
+inline constexpr char kCellsFor50[] = "cells_for_50";
+inline constexpr char kCellsFor70[] = "cells_for_70";
+inline constexpr char kCellsFor90[] = "cells_for_90";
+// Analysed shape (all-zero rows and columns left out).
+inline constexpr char kAnalysedAgents[] = "analysed_agents";
+inline constexpr char kAnalysedPartners[] = "analysed_partners";
 // Comparison metrics are stored as "<prefix><metric>" (analysis/compare.hpp
 // names the metrics), e.g. "entropic_total_variation".
 inline constexpr char kExactPrefix[] = "exact_";
@@ -91,6 +113,8 @@ inline constexpr char kNullMean[] = "null_mean";
 inline constexpr char kNullSd[] = "null_sd";
 inline constexpr char kZScore[] = "z_score";
 inline constexpr char kPUpper[] = "p_upper";
+inline constexpr char kPTwoSided[] = "p_two_sided";
+inline constexpr char kNullSamples[] = "null_samples";
 
 // Summary columns besides the experiment keys and the analysis attributes.
 inline constexpr char kRunColumn[] = "run";
