@@ -52,8 +52,7 @@ Eigen::MatrixXd conditional_covariance(const std::vector<Matrix>& features, cons
   Eigen::MatrixXd cov(k, k);
   for (Eigen::Index a = 0; a < k; ++a)
     for (Eigen::Index b = 0; b <= a; ++b)
-      cov(a, b) = cov(b, a) =
-          weights.cwiseProduct(residuals[a]).cwiseProduct(residuals[b]).sum();
+      cov(a, b) = cov(b, a) = weights.cwiseProduct(residuals[a]).cwiseProduct(residuals[b]).sum();
   return cov;
 }
 

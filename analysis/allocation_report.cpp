@@ -6,7 +6,6 @@
 #include <ostream>
 #include <sstream>
 
-
 namespace allocsim {
 
 const char* const kTemperatureCaution =
@@ -19,20 +18,30 @@ namespace {
 JsonObject comparison_json(const Comparison& c) {
   JsonObject json;
   for (const auto& [name, value] : named_values(c)) {
-    if (name.find("is_forest") != std::string::npos) json.add(name, value != 0);
-    else if (name.find("size") != std::string::npos) json.add(name, static_cast<long long>(value));
-    else json.add(name, value);
+    if (name.find("is_forest") != std::string::npos)
+      json.add(name, value != 0);
+    else if (name.find("size") != std::string::npos)
+      json.add(name, static_cast<long long>(value));
+    else
+      json.add(name, value);
   }
   return json;
 }
 
 JsonObject temperature_json(const TemperatureResult& t) {
   JsonObject json;
-  json.add("epsilon", t.epsilon).add("stderr", t.standard_error).add("ci_low", t.ci_low)
-      .add("ci_high", t.ci_high).add("status", to_string(t.status)).add("beta", t.beta)
-      .add("confidence", t.confidence).add("ci_high_infinite", std::isinf(t.ci_high))
-      .add("observed_gain", t.observed_gain).add("fitted_gain", t.fitted_gain)
-      .add("optimum_gain", t.optimum_gain).add("independent_gain", t.independent_gain)
+  json.add("epsilon", t.epsilon)
+      .add("stderr", t.standard_error)
+      .add("ci_low", t.ci_low)
+      .add("ci_high", t.ci_high)
+      .add("status", to_string(t.status))
+      .add("beta", t.beta)
+      .add("confidence", t.confidence)
+      .add("ci_high_infinite", std::isinf(t.ci_high))
+      .add("observed_gain", t.observed_gain)
+      .add("fitted_gain", t.fitted_gain)
+      .add("optimum_gain", t.optimum_gain)
+      .add("independent_gain", t.independent_gain)
       .add("solves", static_cast<long long>(t.solves));
   if (!t.message.empty()) json.add("message", t.message);
   return json;
@@ -61,7 +70,9 @@ void compare_structure_with_null(const Matrix& allocation, const AllocationAnaly
   const bool weighted = nulls.model == NullModel::fixed_margins;
   const BinarizeOptions rule = weighted ? options.binarize : BinarizeOptions{};
   const Matrix observed = weighted ? allocation : to_matrix(binarize(allocation, options.binarize));
-  const MetricFunction links_nodf = [&rule](const Matrix& m) { return nodf(binarize(m, rule)).total; };
+  const MetricFunction links_nodf = [&rule](const Matrix& m) {
+    return nodf(binarize(m, rule)).total;
+  };
   if (!weighted) {
     structure.nodf_null = compare_with_null(links_nodf, observed, nulls);
     return;
@@ -78,13 +89,17 @@ void compare_structure_with_null(const Matrix& allocation, const AllocationAnaly
 
 JsonObject null_json(const NullComparison& c) {
   JsonObject json;
-  json.add("model", to_string(c.model)).add("samples", static_cast<long long>(c.samples))
-      .add("seed", static_cast<long long>(c.seed)).add("null_mean", c.null_mean)
-      .add("null_sd", c.null_sd).add("z_score", c.z_score).add("p_upper", c.p_upper)
-      .add("p_two_sided", c.p_two_sided).add("status", to_string(c.status));
+  json.add("model", to_string(c.model))
+      .add("samples", static_cast<long long>(c.samples))
+      .add("seed", static_cast<long long>(c.seed))
+      .add("null_mean", c.null_mean)
+      .add("null_sd", c.null_sd)
+      .add("z_score", c.z_score)
+      .add("p_upper", c.p_upper)
+      .add("p_two_sided", c.p_two_sided)
+      .add("status", to_string(c.status));
   return json;
 }
-
 
 // Fewest of the largest cells whose shares add up to `share` of the total.
 long cells_for_share(const std::vector<double>& descending, double total, double share) {
@@ -116,7 +131,8 @@ GradientOrder display_order(const AllocationReport& r) {
   GradientOrder kept = correspondence_order(r.values);
   GradientOrder order = kept;
   order.rows = to_input_indices(kept.rows, r.observed.kept_rows, r.observed.dropped_rows);
-  order.columns = to_input_indices(kept.columns, r.observed.kept_columns, r.observed.dropped_columns);
+  order.columns =
+      to_input_indices(kept.columns, r.observed.kept_columns, r.observed.dropped_columns);
   return order;
 }
 
@@ -135,9 +151,9 @@ TemperatureResult not_estimated(TemperatureStatus status, const std::string& why
 void compare_with_couplings(const AllocationAnalysisOptions& options, AllocationReport& report) {
   const ObservedAllocation& o = report.observed;
   if (!o.has_gains) {
-    report.temperature = not_estimated(
-        TemperatureStatus::no_gains, "no gains given; structure, nulls and concentration need none",
-        options);
+    report.temperature =
+        not_estimated(TemperatureStatus::no_gains,
+                      "no gains given; structure, nulls and concentration need none", options);
     return;
   }
   const std::string reason = uninformative_gains_reason(o.problem);
@@ -148,7 +164,8 @@ void compare_with_couplings(const AllocationAnalysisOptions& options, Allocation
   }
   report.exact = solve_exact(o.problem);
   report.temperature = estimate_temperature(o, options.temperature, &report.exact);
-  if (report.exact.optimal()) report.versus_exact = compare_allocation(o.shares, report.exact.coupling);
+  if (report.exact.optimal())
+    report.versus_exact = compare_allocation(o.shares, report.exact.coupling);
   if (report.temperature.estimated()) {
     report.has_entropic = true;
     report.versus_entropic = compare_allocation(o.shares, report.temperature.coupling);
@@ -262,8 +279,10 @@ std::vector<JsonObject> ordering_json(const AllocationReport& r, bool agents) {
         .add("index", static_cast<long long>(input + 1))
         .add("rank", static_cast<long long>(k + 1))
         .add("degree", static_cast<long long>((agents ? o.agent_degrees : o.partner_degrees)(a)))
-        .add(agents ? "fitness" : "complexity", (agents ? o.fitness.fitness : o.fitness.complexity)(a))
-        .add(agents ? "eci" : "pci", (agents ? o.complexity.row_index : o.complexity.column_index)(a))
+        .add(agents ? "fitness" : "complexity",
+             (agents ? o.fitness.fitness : o.fitness.complexity)(a))
+        .add(agents ? "eci" : "pci",
+             (agents ? o.complexity.row_index : o.complexity.column_index)(a))
         .add(agents ? "eci_rank" : "pci_rank", eci_rank[static_cast<std::size_t>(a)]);
     entries.push_back(e);
   }
@@ -294,7 +313,10 @@ JsonObject concentration_json(const WeightConcentration& c) {
 JsonObject values_json(const ObservedAllocation& o) {
   JsonObject json;
   json.add("reading", o.counts ? "counts" : "shares");
-  if (o.units > 0) json.add("units", o.units); else json.add_null("units");
+  if (o.units > 0)
+    json.add("units", o.units);
+  else
+    json.add_null("units");
   json.add("description", o.reading);
   if (!o.warning.empty()) json.add("warning", o.warning);
   return json;
@@ -309,10 +331,13 @@ JsonObject left_out_json(const AllocationReport& r) {
 
 JsonObject structure_json(const AllocationReport& r) {
   JsonObject structure;
-  structure.add("nodf", r.structure.nodf.total).add("nodf_rows", r.structure.nodf.rows)
-      .add("nodf_columns", r.structure.nodf.columns).add("wnodf", r.structure.wnodf.total)
+  structure.add("nodf", r.structure.nodf.total)
+      .add("nodf_rows", r.structure.nodf.rows)
+      .add("nodf_columns", r.structure.nodf.columns)
+      .add("wnodf", r.structure.wnodf.total)
       .add("spectral_radius", r.structure.spectral_radius)
-      .add("connectance", r.structure.connectance).add("binarize", r.binarize_rule);
+      .add("connectance", r.structure.connectance)
+      .add("binarize", r.binarize_rule);
   if (r.structure.nodf_null) structure.add("nodf_null", null_json(*r.structure.nodf_null));
   if (r.structure.wnodf_null) structure.add("wnodf_null", null_json(*r.structure.wnodf_null));
   return structure;
@@ -348,12 +373,16 @@ JsonObject allocation_report_json(const AllocationReport& r) {
       .add("agents", static_cast<long long>(o.kept_rows.size()))
       .add("partners", static_cast<long long>(o.kept_columns.size()))
       .add("input_agents", static_cast<long long>(o.kept_rows.size() + o.dropped_rows.size()))
-      .add("input_partners", static_cast<long long>(o.kept_columns.size() + o.dropped_columns.size()))
+      .add("input_partners",
+           static_cast<long long>(o.kept_columns.size() + o.dropped_columns.size()))
       .add("left_out", left_out_json(r))
       .add("labels", r.has_labels())
       .add("matching", r.matching)
       .add("counts", o.counts);
-  if (o.units > 0) json.add("units", o.units); else json.add_null("units");
+  if (o.units > 0)
+    json.add("units", o.units);
+  else
+    json.add_null("units");
   json.add("values", values_json(o));
   if (!o.note.empty()) json.add("note", o.note);
   json.add("gains", o.has_gains);
@@ -380,7 +409,8 @@ void print_header(std::ostream& out, const AllocationReport& r) {
   if (!o.dropped_rows.empty())
     out << "  left out, all-zero rows: " << joined(names(r, o.dropped_rows, true), 12) << "\n";
   if (!o.dropped_columns.empty())
-    out << "  left out, all-zero columns: " << joined(names(r, o.dropped_columns, false), 12) << "\n";
+    out << "  left out, all-zero columns: " << joined(names(r, o.dropped_columns, false), 12)
+        << "\n";
 }
 
 void print_temperature(std::ostream& out, const AllocationReport& r) {
@@ -392,8 +422,8 @@ void print_temperature(std::ostream& out, const AllocationReport& r) {
   out << "  gain: observed " << t.observed_gain << ", exact optimum " << t.optimum_gain
       << ", independent coupling " << t.independent_gain << "\n";
   if (r.exact.optimal())
-    out << "versus the exact optimum (" << r.exact.support_size << " links): "
-        << r.versus_exact.brief() << "\n";
+    out << "versus the exact optimum (" << r.exact.support_size
+        << " links): " << r.versus_exact.brief() << "\n";
   if (r.has_entropic)
     out << "versus the entropic coupling at the estimate: " << r.versus_entropic.brief() << "\n";
 }
@@ -407,7 +437,8 @@ void print_concentration(std::ostream& out, const WeightConcentration& c) {
 
 void print_orderings(std::ostream& out, const AllocationReport& r) {
   const FitnessComplexityResult& f = r.orderings.fitness;
-  const auto ranked = [&](const Ordering& order, const std::vector<Eigen::Index>& kept, bool agents) {
+  const auto ranked = [&](const Ordering& order, const std::vector<Eigen::Index>& kept,
+                          bool agents) {
     std::vector<Eigen::Index> input;
     for (const Eigen::Index k : order) input.push_back(kept[static_cast<std::size_t>(k)]);
     return joined(names(r, input, agents), 10);
@@ -430,8 +461,10 @@ void print_allocation_report(std::ostream& out, const AllocationReport& r) {
       << ", NODF " << r.structure.nodf.total << " (rows " << r.structure.nodf.rows << ", columns "
       << r.structure.nodf.columns << "), WNODF (on those links) " << r.structure.wnodf.total
       << ", spectral radius " << r.structure.spectral_radius << "\n";
-  if (r.structure.nodf_null) out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
-  if (r.structure.wnodf_null) out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
+  if (r.structure.nodf_null)
+    out << "  NODF against its null: " << r.structure.nodf_null->brief() << "\n";
+  if (r.structure.wnodf_null)
+    out << "  WNODF against its null: " << r.structure.wnodf_null->brief() << "\n";
   print_orderings(out, r);
   if (r.observed.has_gains) out << kTemperatureCaution << "\n";
 }

@@ -83,7 +83,10 @@ std::string Comparison::brief() const {
   std::ostringstream out;
   out.precision(3);
   out << "total variation " << total_variation << ", Hellinger " << hellinger << ", KL ";
-  if (std::isfinite(kl_divergence)) out << kl_divergence; else out << "infinite";
+  if (std::isfinite(kl_divergence))
+    out << kl_divergence;
+  else
+    out << "infinite";
   out << ", " << 100 * weight_on_coupling_support << "% of the weight on the coupling's "
       << coupling_support_size << " links (Jaccard " << support_jaccard << ")";
   return out.str();

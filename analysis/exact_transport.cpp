@@ -330,7 +330,8 @@ class TransportNetwork {
     partner.resize(m_);
     for (int i = 0; i < n_; ++i)
       agent[i] = scale_ * simplex_->potential(graph_.nodeFromId(i)) + largest_gain_;
-    for (int j = 0; j < m_; ++j) partner[j] = -scale_ * simplex_->potential(graph_.nodeFromId(n_ + j));
+    for (int j = 0; j < m_; ++j)
+      partner[j] = -scale_ * simplex_->potential(graph_.nodeFromId(n_ + j));
   }
 
  private:
@@ -409,7 +410,7 @@ bool refit_on_forest(const TransportProblem& p, Matrix& coupling) {
     refitted(i, j) = std::max(flow, 0.0);
     done[e] = true;
     const std::size_t other = v < static_cast<std::size_t>(n) ? static_cast<std::size_t>(n + j)
-                                                             : static_cast<std::size_t>(i);
+                                                              : static_cast<std::size_t>(i);
     remaining[other] -= flow;
     remaining[v] = 0;
     degree[v] = 0;
@@ -458,7 +459,8 @@ std::string unshipped_masses(const TransportProblem& p, const Matrix& coupling, 
             list(partners);
   }
   return text + " lie below total/mass_units (" + format_mass(1.0 / units) +
-         " of the total mass) and were left unshipped; raise mass_units (solve --mass-units, at most 1e15)";
+         " of the total mass) and were left unshipped; raise mass_units (solve --mass-units, at "
+         "most 1e15)";
 }
 
 ExactResult infeasible_result(const TransportProblem& p, std::string message) {

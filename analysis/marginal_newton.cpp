@@ -97,8 +97,7 @@ MarginalFit match_columns_smaller(const Matrix& x, const Matrix& allowed, const 
     bool accepted = false;
     for (int halvings = 0; halvings < 40 && !accepted; ++halvings) {
       next = evaluate(x, allowed, r, c, a + t * da, b + t * db);
-      const double v =
-          ((next.row_sum - r).lpNorm<1>() + (next.column_sum - c).lpNorm<1>()) / total;
+      const double v = ((next.row_sum - r).lpNorm<1>() + (next.column_sum - c).lpNorm<1>()) / total;
       accepted = next.objective <= s.objective + 1e-4 * t * slope || v < 0.9 * fit.violation;
       if (!accepted) t *= 0.5;
     }
@@ -126,8 +125,8 @@ MarginalFit match_marginals(const Matrix& log_kernel, const Matrix& allowed, con
     return match_columns_smaller(log_kernel, allowed, rows, columns, row_start, column_start,
                                  tolerance, max_iterations);
   const Matrix xt = log_kernel.transpose(), at = allowed.transpose();
-  MarginalFit fit = match_columns_smaller(xt, at, columns, rows, column_start, row_start,
-                                          tolerance, max_iterations);
+  MarginalFit fit = match_columns_smaller(xt, at, columns, rows, column_start, row_start, tolerance,
+                                          max_iterations);
   std::swap(fit.row_effect, fit.column_effect);
   fit.coupling.transposeInPlace();
   return fit;

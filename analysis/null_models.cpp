@@ -530,8 +530,8 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
           row_counts_.push_back(std::lround(row_totals_(i)));
         for (Index j = 0; j < observed.cols(); ++j)
           column_counts_.push_back(std::lround(column_totals_(j)));
-        log_factorial_ = log_factorials(
-            std::accumulate(column_counts_.begin(), column_counts_.end(), 0L) + 1);
+        log_factorial_ =
+            log_factorials(std::accumulate(column_counts_.begin(), column_counts_.end(), 0L) + 1);
       }
       break;
     }

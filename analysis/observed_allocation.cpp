@@ -22,7 +22,8 @@ void check_entries(const Matrix& p, const std::optional<Matrix>& given_gains,
   const Matrix& gains = given_gains ? *given_gains : p;  // without gains: nothing to check
   if (p.rows() != gains.rows() || p.cols() != gains.cols())
     throw InputError(s.allocation, "is " + shape("", p.rows(), p.cols()).substr(1) + " but " +
-                                       s.gains + " is " + shape("", gains.rows(), gains.cols()).substr(1) +
+                                       s.gains + " is " +
+                                       shape("", gains.rows(), gains.cols()).substr(1) +
                                        "; both must be agents x partners");
   if (access && (access->rows() != p.rows() || access->cols() != p.cols()))
     throw InputError(s.access, "is " + shape("", access->rows(), access->cols()).substr(1) +
@@ -40,8 +41,8 @@ void check_entries(const Matrix& p, const std::optional<Matrix>& given_gains,
       if (allowed && !std::isfinite(gains(i, j)))
         throw InputError(s.gains, cell(i, j) + ": gain is not a finite number");
       if (!allowed && v > 0)
-        throw InputError(s.allocation, cell(i, j) + ": positive entry where " + s.access +
-                                           " forbids the pair");
+        throw InputError(s.allocation,
+                         cell(i, j) + ": positive entry where " + s.access + " forbids the pair");
     }
   }
   if (!(p.sum() > 0)) throw InputError(s.allocation, "has no positive entry");
@@ -50,7 +51,10 @@ void check_entries(const Matrix& p, const std::optional<Matrix>& given_gains,
 std::string list_of(const std::vector<Eigen::Index>& indices) {
   std::ostringstream out;
   for (std::size_t k = 0; k < indices.size(); ++k) {
-    if (k == 8) { out << ", ..."; break; }
+    if (k == 8) {
+      out << ", ...";
+      break;
+    }
     out << (k ? ", " : "") << indices[k] + 1;
   }
   return out.str();
@@ -101,7 +105,8 @@ void read_values(const Matrix& p, const ValueReading& r, const std::string& sour
   o.units = o.counts ? p.sum() : r.units;
   const std::string n = units_phrase(o.units);
   if (o.counts)
-    o.reading = "counts" + std::string(r.kind == ValueKind::automatic ? " (every cell whole)" : "") +
+    o.reading = "counts" +
+                std::string(r.kind == ValueKind::automatic ? " (every cell whole)" : "") +
                 ": N = " + n + " independent units";
   else if (o.units > 0)
     o.reading = "shares observed on N = " + n + " independent units (--units)";
@@ -122,9 +127,12 @@ void read_values(const Matrix& p, const ValueReading& r, const std::string& sour
 
 std::string to_string(ValueKind kind) {
   switch (kind) {
-    case ValueKind::automatic: return "automatic";
-    case ValueKind::counts: return "counts";
-    case ValueKind::shares: return "shares";
+    case ValueKind::automatic:
+      return "automatic";
+    case ValueKind::counts:
+      return "counts";
+    case ValueKind::shares:
+      return "shares";
   }
   return "";
 }
@@ -139,7 +147,8 @@ void ValueReading::validate() const {
   if (!(units >= 0) || !std::isfinite(units))
     throw InputError("units", "must be a finite number > 0");
   if (units > 0 && kind == ValueKind::counts)
-    throw InputError("units", "applies to shares; counts are their own number of units (their sum)");
+    throw InputError("units",
+                     "applies to shares; counts are their own number of units (their sum)");
 }
 
 double ObservedAllocation::observed_gain() const {
@@ -164,8 +173,8 @@ ObservedAllocation observe_allocation(const Matrix& allocation, const std::optio
     (cols(j) > 0 ? o.kept_columns : o.dropped_columns).push_back(j);
   o.note = drop_note(o, sources.allocation);
   o.shares = restrict_to_kept(allocation, o) / allocation.sum();
-  o.problem.gains = gains ? restrict_to_kept(*gains, o)
-                          : Matrix::Zero(o.shares.rows(), o.shares.cols()).eval();
+  o.problem.gains =
+      gains ? restrict_to_kept(*gains, o) : Matrix::Zero(o.shares.rows(), o.shares.cols()).eval();
   if (access) {
     AccessMask kept(o.kept_rows.size(), o.kept_columns.size());
     for (std::size_t a = 0; a < o.kept_rows.size(); ++a)

@@ -62,22 +62,38 @@ Bandwidth measure_bandwidth(const Settings& settings, Report& report) {
 
   const auto gbs = [](double v) { return format_number(v / 1e9) + " GB/s"; };
   const std::string size = format_number(kernel * 8 / 1e6) + " MB";
-  Row r1{"machine", "read bandwidth, " + size + " buffer (a " + std::to_string(side) + "^2 kernel)",
-         gbs(b.read_one) + " (1 thread)", gbs(b.read_two) + " (2 threads)", b.read_two / b.read_one,
-         "", Verdict::info, {}};
+  Row r1{"machine",
+         "read bandwidth, " + size + " buffer (a " + std::to_string(side) + "^2 kernel)",
+         gbs(b.read_one) + " (1 thread)",
+         gbs(b.read_two) + " (2 threads)",
+         b.read_two / b.read_one,
+         "",
+         Verdict::info,
+         {}};
   r1.values.add("bytes", static_cast<long long>(kernel * 8))
       .add("one_thread_bytes_per_second", b.read_one)
       .add("two_threads_bytes_per_second", b.read_two);
   report.add(std::move(r1));
-  Row r2{"machine", "read bandwidth, " + std::to_string(dram * 8 >> 20) + " MiB buffer (main memory)",
-         gbs(b.dram_one) + " (1 thread)", gbs(b.dram_two) + " (2 threads)", b.dram_two / b.dram_one,
-         "", Verdict::info, {}};
+  Row r2{"machine",
+         "read bandwidth, " + std::to_string(dram * 8 >> 20) + " MiB buffer (main memory)",
+         gbs(b.dram_one) + " (1 thread)",
+         gbs(b.dram_two) + " (2 threads)",
+         b.dram_two / b.dram_one,
+         "",
+         Verdict::info,
+         {}};
   r2.values.add("bytes", static_cast<long long>(dram * 8))
       .add("one_thread_bytes_per_second", b.dram_one)
       .add("two_threads_bytes_per_second", b.dram_two);
   report.add(std::move(r2));
-  Row r3{"machine", "vectorised exp (Eigen), one thread", format_seconds(b.exp_seconds) + " per exp",
-         "", 0, "", Verdict::info, {}};
+  Row r3{"machine",
+         "vectorised exp (Eigen), one thread",
+         format_seconds(b.exp_seconds) + " per exp",
+         "",
+         0,
+         "",
+         Verdict::info,
+         {}};
   r3.values.add("seconds_per_exp", b.exp_seconds);
   report.add(std::move(r3));
   return b;

@@ -21,7 +21,8 @@ std::string solve_text(double seconds, long iterations) {
 
 std::string numpy_text(const std::string& name, const PythonAnswer& a) {
   if (!a.ok()) return name + " did not run";
-  std::string text = name + " " + solve_text(a.number("seconds"), static_cast<long>(a.number("iterations")));
+  std::string text =
+      name + " " + solve_text(a.number("seconds"), static_cast<long>(a.number("iterations")));
   if (a.flag("failed")) return text + " (left float range)";
   if (!a.flag("converged")) text += " (stopped at " + format_number(a.number("violation"), 2) + ")";
   return text;
@@ -46,9 +47,13 @@ void entropic_rows(const Settings& settings, Report& report) {
       o.tolerance = kCompareTolerance;
       EntropicResult ours;
       const double seconds = best_time(settings.repeats, [&] { ours = solve_entropic(p, o); });
-      const std::vector<std::string> common = {
-          settings.workdir, std::to_string(n), std::to_string(n), format_number(o.epsilon, 17),
-          format_number(kCompareTolerance, 17), std::to_string(numpy_max_iter), budget};
+      const std::vector<std::string> common = {settings.workdir,
+                                               std::to_string(n),
+                                               std::to_string(n),
+                                               format_number(o.epsilon, 17),
+                                               format_number(kCompareTolerance, 17),
+                                               std::to_string(numpy_max_iter),
+                                               budget};
       auto args = common;
       args.insert(args.begin(), "plain");
       const PythonAnswer plain = run_python(args);
@@ -84,14 +89,18 @@ void entropic_rows(const Settings& settings, Report& report) {
             .add("numpy_failed", a.flag("failed"))
             .add("numpy_seconds_per_iteration", a.number("seconds_per_iteration"));
       };
-      Row vs_plain{"entropic", what + " vs numpy plain", ours_text, numpy_text("numpy plain", plain),
-                   ratio_of(plain), "", Verdict::info, {}};
+      Row vs_plain{"entropic",      what + " vs numpy plain",
+                   ours_text,       numpy_text("numpy plain", plain),
+                   ratio_of(plain), "",
+                   Verdict::info,   {}};
       add_values(vs_plain, plain);
       report.add(std::move(vs_plain));
 
       const double log_ratio = ratio_of(logd);
-      Row vs_log{"entropic", what + " vs numpy log-domain", ours_text,
-                 numpy_text("numpy log", logd), log_ratio, ">= 10x faster", Verdict::met, {}};
+      Row vs_log{"entropic",   what + " vs numpy log-domain",
+                 ours_text,    numpy_text("numpy log", logd),
+                 log_ratio,    ">= 10x faster",
+                 Verdict::met, {}};
       // A numpy run stopped by its time budget gives a lower bound on the ratio.
       if (!(log_ratio >= 10) || !ours.converged()) vs_log.verdict = Verdict::missed;
       if (!logd.flag("converged") && log_ratio > 0) vs_log.reference += ", ratio is a lower bound";
@@ -106,10 +115,15 @@ void entropic_rows(const Settings& settings, Report& report) {
         EntropicResult r;
         const double s = best_time(settings.repeats, [&] { r = solve_entropic(p, o); });
         small_eps_seconds.push_back(s);
-        Row row{"entropic", "geometric, eps=" + format_number(factor) + " range, " + size + ", tol 1e-9",
+        Row row{"entropic",
+                "geometric, eps=" + format_number(factor) + " range, " + size + ", tol 1e-9",
                 solve_text(s, r.iterations) + ", violation " + format_number(r.marginal_error, 2) +
                     (r.converged() ? "" : " (" + to_string(r.status) + ")"),
-                "", 0, "", r.converged() ? Verdict::info : Verdict::missed, {}};
+                "",
+                0,
+                "",
+                r.converged() ? Verdict::info : Verdict::missed,
+                {}};
         if (factor == 0.001) {
           row.reference = "eps=0.01: " + format_seconds(small_eps_seconds[0]);
           row.ratio = s / small_eps_seconds[0];

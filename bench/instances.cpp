@@ -7,9 +7,7 @@
 
 namespace allocsim::bench {
 
-std::string to_string(GainKind kind) {
-  return kind == GainKind::random ? "random" : "geometric";
-}
+std::string to_string(GainKind kind) { return kind == GainKind::random ? "random" : "geometric"; }
 
 TransportProblem make_instance(long n, long m, GainKind kind, std::uint64_t seed) {
   TransportProblem p;

@@ -44,8 +44,7 @@ double LogDomainSweep::sweep() {
     return violation;
   }
   top_.setConstant(-INFINITY);
-  for (Eigen::Index i = 0; i < n; ++i)
-    top_ = top_.max(scaled_.row(i).transpose().array() + f_[i]);
+  for (Eigen::Index i = 0; i < n; ++i) top_ = top_.max(scaled_.row(i).transpose().array() + f_[i]);
   sum_.setZero();
   for (Eigen::Index i = 0; i < n; ++i)
     sum_ += (scaled_.row(i).transpose().array() + f_[i] - top_).exp();

@@ -10,9 +10,12 @@ namespace {
 
 std::string verdict_text(Verdict verdict) {
   switch (verdict) {
-    case Verdict::met: return "met";
-    case Verdict::missed: return "MISSED";
-    case Verdict::info: return "";
+    case Verdict::met:
+      return "met";
+    case Verdict::missed:
+      return "MISSED";
+    case Verdict::info:
+      return "";
   }
   return "";
 }
@@ -44,8 +47,8 @@ void Report::add(Row row) { rows_.push_back(std::move(row)); }
 
 // A Markdown table (it goes into the README as printed).
 std::string Report::table() const {
-  const std::vector<std::string> head = {"group", "measurement", "ours", "compared with",
-                                         "ratio", "target", "verdict"};
+  const std::vector<std::string> head = {"group", "measurement", "ours",   "compared with",
+                                         "ratio", "target",      "verdict"};
   std::vector<std::vector<std::string>> cells;
   for (const Row& r : rows_) {
     cells.push_back({r.group, r.name, r.ours, r.reference, ratio_text(r.ratio), r.target,
@@ -78,10 +81,14 @@ std::string Report::json() const {
     const Row& r = rows_[k];
     JsonObject o;
     o.add("group", r.group).add("name", r.name).add("ours", r.ours).add("reference", r.reference);
-    if (r.ratio > 0) o.add("ratio", r.ratio); else o.add_null("ratio");
-    o.add("target", r.target).add("verdict", r.verdict == Verdict::info ? std::string("info")
-                                              : r.verdict == Verdict::met ? std::string("met")
-                                                                          : std::string("missed"));
+    if (r.ratio > 0)
+      o.add("ratio", r.ratio);
+    else
+      o.add_null("ratio");
+    o.add("target", r.target)
+        .add("verdict", r.verdict == Verdict::info  ? std::string("info")
+                        : r.verdict == Verdict::met ? std::string("met")
+                                                    : std::string("missed"));
     o.add("values", r.values);
     rows += (k ? "," : "") + o.str();
   }

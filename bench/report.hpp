@@ -18,7 +18,7 @@ struct Row {
   double ratio = 0;       // the ratio the target is about (0: none)
   std::string target;     // the target in words, empty when none
   Verdict verdict = Verdict::info;
-  JsonObject values;      // the raw numbers, for --json
+  JsonObject values;  // the raw numbers, for --json
 };
 
 class Report {

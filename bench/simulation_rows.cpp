@@ -4,7 +4,6 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
-
 #include <atomic>
 #include <cstdio>
 #include <cstdlib>
@@ -14,8 +13,8 @@
 
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/core/random.hpp"
-#include "allocsim/sim/engine.hpp"
 #include "allocsim/results/results_file.hpp"
+#include "allocsim/sim/engine.hpp"
 #include "allocsim/sim/rules.hpp"
 #include "bench.hpp"
 #include "instances.hpp"
@@ -134,15 +133,26 @@ void simulation_rows(const Settings& settings, const Bandwidth&, Report& report)
     const double sampled = seconds_per_round(p, o, settings.repeats + 5);
     o.mean_field = true;
     const double mean_field = seconds_per_round(p, o, settings.repeats + 5);
-    Row row{"simulation", "price-rule round (10000 units), " + size, format_seconds(sampled),
-            "log-domain sweep " + format_seconds(log_one), sampled / log_one,
-            "<= 1x a log-domain sweep", sampled <= log_one ? Verdict::met : Verdict::missed, {}};
-    row.values.add("round_seconds", sampled).add("log_domain_sweep_seconds", log_one)
+    Row row{"simulation",
+            "price-rule round (10000 units), " + size,
+            format_seconds(sampled),
+            "log-domain sweep " + format_seconds(log_one),
+            sampled / log_one,
+            "<= 1x a log-domain sweep",
+            sampled <= log_one ? Verdict::met : Verdict::missed,
+            {}};
+    row.values.add("round_seconds", sampled)
+        .add("log_domain_sweep_seconds", log_one)
         .add("units", static_cast<long long>(10000));
     report.add(std::move(row));
-    Row mf{"simulation", "price-rule round, mean-field, " + size, format_seconds(mean_field),
-           "log-domain sweep " + format_seconds(log_one), mean_field / log_one,
-           "<= 1x a log-domain sweep", mean_field <= log_one ? Verdict::met : Verdict::missed, {}};
+    Row mf{"simulation",
+           "price-rule round, mean-field, " + size,
+           format_seconds(mean_field),
+           "log-domain sweep " + format_seconds(log_one),
+           mean_field / log_one,
+           "<= 1x a log-domain sweep",
+           mean_field <= log_one ? Verdict::met : Verdict::missed,
+           {}};
     mf.values.add("round_seconds", mean_field).add("log_domain_sweep_seconds", log_one);
     report.add(std::move(mf));
   }
@@ -161,8 +171,9 @@ void simulation_rows(const Settings& settings, const Bandwidth&, Report& report)
     double one = allocsim_run_seconds(settings, ini, 1), two = -1;
     if (one > 0) two = allocsim_run_seconds(settings, ini, 2);
     const bool program = one > 0 && two > 0;
-    std::string what = "allocsim run: " + std::to_string(runs) + " runs of n=m=" +
-                       std::to_string(side) + ", " + std::to_string(rounds) + " rounds, 2 threads vs 1";
+    std::string what = "allocsim run: " + std::to_string(runs) +
+                       " runs of n=m=" + std::to_string(side) + ", " + std::to_string(rounds) +
+                       " rounds, 2 threads vs 1";
     if (program) {
       one = static_cast<double>(runs) / one;
       two = static_cast<double>(runs) / two;
@@ -171,10 +182,18 @@ void simulation_rows(const Settings& settings, const Bandwidth&, Report& report)
       two = runs_per_second(runs, 2, side, rounds);
       what = "in-process runs (allocsim run missing): " + what.substr(what.find(':') + 2);
     }
-    Row row{"sweep", what, format_number(two) + " runs/s", "1 thread " + format_number(one) + " runs/s",
-            two / one, ">= 1.8x", two / one >= 1.8 ? Verdict::met : Verdict::missed, {}};
-    row.values.add("runs", static_cast<long long>(runs)).add("one_thread_runs_per_second", one)
-        .add("two_threads_runs_per_second", two).add("through_allocsim_run", program);
+    Row row{"sweep",
+            what,
+            format_number(two) + " runs/s",
+            "1 thread " + format_number(one) + " runs/s",
+            two / one,
+            ">= 1.8x",
+            two / one >= 1.8 ? Verdict::met : Verdict::missed,
+            {}};
+    row.values.add("runs", static_cast<long long>(runs))
+        .add("one_thread_runs_per_second", one)
+        .add("two_threads_runs_per_second", two)
+        .add("through_allocsim_run", program);
     report.add(std::move(row));
   }
   {
@@ -184,14 +203,17 @@ void simulation_rows(const Settings& settings, const Bandwidth&, Report& report)
     const long large = child_peak_bytes(settings, side, long_rounds);
     const double matrix = static_cast<double>(side) * side * 8;
     const double growth = static_cast<double>(large) / static_cast<double>(small);
-    Row row{"simulation", "peak memory, n=m=" + std::to_string(side) + ", " +
-                              std::to_string(long_rounds) + " vs " + std::to_string(short_rounds) +
-                              " rounds (HDF5 recorder)",
+    Row row{"simulation",
+            "peak memory, n=m=" + std::to_string(side) + ", " + std::to_string(long_rounds) +
+                " vs " + std::to_string(short_rounds) + " rounds (HDF5 recorder)",
             format_number(large / 1e6) + " MB = " + format_number(large / matrix) + " n*m*8",
             format_number(small / 1e6) + " MB = " + format_number(small / matrix) + " n*m*8",
-            growth, "no growth with rounds (<= 1.05x)",
-            small > 0 && large > 0 && growth <= 1.05 ? Verdict::met : Verdict::missed, {}};
-    row.values.add("n_m_8_bytes", matrix).add("short_rounds", static_cast<long long>(short_rounds))
+            growth,
+            "no growth with rounds (<= 1.05x)",
+            small > 0 && large > 0 && growth <= 1.05 ? Verdict::met : Verdict::missed,
+            {}};
+    row.values.add("n_m_8_bytes", matrix)
+        .add("short_rounds", static_cast<long long>(short_rounds))
         .add("long_rounds", static_cast<long long>(long_rounds))
         .add("short_peak_bytes", static_cast<long long>(small))
         .add("long_peak_bytes", static_cast<long long>(large));

@@ -8,15 +8,15 @@
 #include <optional>
 #include <sstream>
 
+#include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/analysis/report_exports.hpp"
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/json.hpp"
+#include "allocsim/core/label_alignment.hpp"
 #include "allocsim/core/memory_limit.hpp"
 #include "allocsim/core/output_file.hpp"
-#include "allocsim/core/json.hpp"
-#include "allocsim/analysis/allocation_report.hpp"
-#include "allocsim/analysis/report_exports.hpp"
-#include "allocsim/core/label_alignment.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
@@ -40,8 +40,9 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
     if (vm.count("threshold")) options.binarize.threshold = vm["threshold"].as<double>();
     options.binarize.validate();
   } catch (const InputError& e) {
-    throw InputError(vm.count("threshold") && e.where() == "threshold" ? "--threshold" : "--binarize",
-                     std::string(e.what()).substr(e.where().size() + 2));
+    throw InputError(
+        vm.count("threshold") && e.where() == "threshold" ? "--threshold" : "--binarize",
+        std::string(e.what()).substr(e.where().size() + 2));
   }
   if (vm.count("nulls")) {
     NullOptions nulls;
@@ -56,8 +57,8 @@ AllocationAnalysisOptions read_options(const po::variables_map& vm) {
     if (nulls.samples < 2) throw InputError("--null-samples", "must be at least 2");
     // The ensemble keeps one value per sample and metric (NODF, WNODF).
     require_memory(static_cast<double>(nulls.samples) * 2 * sizeof(double),
-                   "a null ensemble of " + std::to_string(nulls.samples) + " samples", "--null-samples",
-                   "use fewer samples");
+                   "a null ensemble of " + std::to_string(nulls.samples) + " samples",
+                   "--null-samples", "use fewer samples");
     options.nulls = nulls;
   }
   return options;
@@ -113,7 +114,8 @@ AccessMask read_aligned_access(const std::string& path, const LabeledMatrix& all
 
 AllocationInput read_csv_input(const po::variables_map& vm) {
   if (!vm.count("allocation"))
-    throw InputError("allocsim analyze", "give --allocation P.csv [--gains G.csv], or a results file");
+    throw InputError("allocsim analyze",
+                     "give --allocation P.csv [--gains G.csv], or a results file");
   AllocationInput in;
   in.sources.allocation = vm["allocation"].as<std::string>();
   const LabeledMatrix allocation = read_allocation(in.sources.allocation, vm);
@@ -139,7 +141,8 @@ void print_report(const AllocationReport& report,
                   const po::variables_map& vm) {
   if (vm.count("json")) {
     JsonObject json = allocation_report_json(report);
-    if (reconstruction) json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
+    if (reconstruction)
+      json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
     std::cout << json.str() << "\n";
   } else {
     print_allocation_report(std::cout, report);
@@ -152,7 +155,8 @@ void print_report(const AllocationReport& report,
 
 void write_exports(const AllocationReport& report, const po::variables_map& vm) {
   if (!vm.count("export-dir")) return;
-  const std::vector<std::string> written = export_report(report, vm["export-dir"].as<std::string>());
+  const std::vector<std::string> written =
+      export_report(report, vm["export-dir"].as<std::string>());
   std::cerr << "wrote " << written.size() << " files into " << vm["export-dir"].as<std::string>()
             << "\n";
 }
@@ -273,42 +277,50 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
 
 int analyze_command(const Arguments& args) {
   po::options_description options("options");
-  options.add_options()
-      ("allocation", po::value<std::string>(), "CSV matrix of the allocation (agents x partners), "
-                                               "labels optional; rows and columns of the other "
-                                               "files are matched to its labels")
-      ("gains", po::value<std::string>(), "CSV matrix of gains (agents x partners); optional: "
-                                          "without it no temperature, everything else")
-      ("values", po::value<std::string>(), "how the allocation's cells are read: counts (whole "
-                                           "units) | shares (default: counts when every cell is whole)")
-      ("units", po::value<double>(), "shares: the number N of independent units behind them "
-                                     "(for standard errors and intervals)")
-      ("export-dir", po::value<std::string>(), "write labelled CSV files of the analysis into this folder")
-      ("missing", po::value<std::string>(), "zero: read empty and NA cells of the allocation as 0 "
-                                            "(default: they are an error naming the cell)")
-      ("save", po::value<std::string>(), "write the matrix, labels, gains and analysis as a results "
-                                         "file (one run) for inspect, plot and analyze")
-      ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
-      ("results", po::value<std::string>(), "a results file (HDF5) to analyse instead of CSV files")
-      ("run", po::value<std::string>(), "results file: analyse only this run (e.g. run-000000)")
-      ("write", "results file: store the analysis in each run's analysis/ group")
-      ("confidence", po::value<double>()->default_value(0.95), "level of the temperature interval")
-      ("binarize", po::value<std::string>()->default_value("positive"),
-       "link rule for structure metrics: positive | row-share | min-count | revealed-advantage")
-      ("threshold", po::value<double>(), "threshold of the link rule (default: the rule's own)")
-      ("nulls", po::value<std::string>(), "compare NODF (and WNODF) with a null model: "
-                                          "curveball | bicm | fixed-margins")
-      ("null-samples", po::value<long>()->default_value(200), "size of the null ensemble")
-      ("null-seed", po::value<long>()->default_value(1), "seed of the null ensemble")
-      ("json", "print one JSON object on stdout (one per run for a results file)");
+  options.add_options()("allocation", po::value<std::string>(),
+                        "CSV matrix of the allocation (agents x partners), "
+                        "labels optional; rows and columns of the other "
+                        "files are matched to its labels")(
+      "gains", po::value<std::string>(),
+      "CSV matrix of gains (agents x partners); optional: "
+      "without it no temperature, everything else")(
+      "values", po::value<std::string>(),
+      "how the allocation's cells are read: counts (whole "
+      "units) | shares (default: counts when every cell is whole)")(
+      "units", po::value<double>(),
+      "shares: the number N of independent units behind them "
+      "(for standard errors and intervals)")(
+      "export-dir", po::value<std::string>(),
+      "write labelled CSV files of the analysis into this folder")(
+      "missing", po::value<std::string>(),
+      "zero: read empty and NA cells of the allocation as 0 "
+      "(default: they are an error naming the cell)")(
+      "save", po::value<std::string>(),
+      "write the matrix, labels, gains and analysis as a results "
+      "file (one run) for inspect, plot and analyze")(
+      "access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")(
+      "results", po::value<std::string>(), "a results file (HDF5) to analyse instead of CSV files")(
+      "run", po::value<std::string>(), "results file: analyse only this run (e.g. run-000000)")(
+      "write", "results file: store the analysis in each run's analysis/ group")(
+      "confidence", po::value<double>()->default_value(0.95), "level of the temperature interval")(
+      "binarize", po::value<std::string>()->default_value("positive"),
+      "link rule for structure metrics: positive | row-share | min-count | revealed-advantage")(
+      "threshold", po::value<double>(), "threshold of the link rule (default: the rule's own)")(
+      "nulls", po::value<std::string>(),
+      "compare NODF (and WNODF) with a null model: "
+      "curveball | bicm | fixed-margins")("null-samples", po::value<long>()->default_value(200),
+                                          "size of the null ensemble")(
+      "null-seed", po::value<long>()->default_value(1), "seed of the null ensemble")(
+      "json", "print one JSON object on stdout (one per run for a results file)");
   add_gains_reconstruction_options(options);
   po::positional_options_description positional;
   positional.add("results", 1);
   po::variables_map vm;
-  if (!parse_or_help(args, options, positional, vm, "analyze",
-                     "--allocation P.csv [--gains G.csv] [--access A.csv] [--values counts|shares]\n"
-                     "       [--units N] [--nulls MODEL] [--export-dir D] [--save obs.h5] [--json]\n"
-                     "       allocsim analyze results.h5 [--run NAME] [--json] [--write]"))
+  if (!parse_or_help(
+          args, options, positional, vm, "analyze",
+          "--allocation P.csv [--gains G.csv] [--access A.csv] [--values counts|shares]\n"
+          "       [--units N] [--nulls MODEL] [--export-dir D] [--save obs.h5] [--json]\n"
+          "       allocsim analyze results.h5 [--run NAME] [--json] [--write]"))
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {

@@ -3,9 +3,9 @@
 #include <sstream>
 #include <variant>
 
+#include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
-#include "allocsim/core/csv.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
@@ -42,9 +42,12 @@ std::string attribute_text(const Attributes& attributes, const std::string& name
 JsonObject attributes_json(const Attributes& attributes) {
   JsonObject json;
   for (const auto& [key, value] : attributes) {
-    if (const auto* text = std::get_if<std::string>(&value)) json.add(key, *text);
-    else if (const auto* integer = std::get_if<long long>(&value)) json.add(key, *integer);
-    else json.add(key, std::get<double>(value));
+    if (const auto* text = std::get_if<std::string>(&value))
+      json.add(key, *text);
+    else if (const auto* integer = std::get_if<long long>(&value))
+      json.add(key, *integer);
+    else
+      json.add(key, std::get<double>(value));
   }
   return json;
 }
@@ -71,7 +74,8 @@ void print_listing(const ResultsReader& reader, bool show_experiment) {
   std::cout << "\nruns: " << names.size() << "\n";
   for (const auto& name : names) {
     const Attributes attributes = reader.run_attributes(name);
-    std::cout << "\n" << name << " (status " << attribute_text(attributes, layout::kStatus) << ")\n"
+    std::cout << "\n"
+              << name << " (status " << attribute_text(attributes, layout::kStatus) << ")\n"
               << "  parameters:\n";
     for (const auto& [key, value] : attributes) {
       std::cout << "    " << key << " = " << text_of(value) << "\n";
@@ -85,7 +89,8 @@ void print_listing(const ResultsReader& reader, bool show_experiment) {
   const std::vector<DatasetInfo> columns = reader.summary_columns();
   if (!columns.empty()) {
     const auto rows = columns.front().shape.empty() ? 0 : columns.front().shape[0];
-    std::cout << "\nsummary: " << rows << (rows == 1 ? " row, " : " rows, ") << columns.size() << " columns\n";
+    std::cout << "\nsummary: " << rows << (rows == 1 ? " row, " : " rows, ") << columns.size()
+              << " columns\n";
   }
 }
 
@@ -96,8 +101,10 @@ void print_json(const ResultsReader& reader) {
   for (const auto& name : {layout::kFormatAttribute, layout::kFormatVersion, layout::kToolVersion,
                            layout::kCreatedUtc, layout::kExperiment}) {
     if (const AttributeValue* value = find(root, name)) {
-      if (const auto* text = std::get_if<std::string>(value)) json.add(name, *text);
-      else json.add(name, text_of(*value));
+      if (const auto* text = std::get_if<std::string>(value))
+        json.add(name, *text);
+      else
+        json.add(name, text_of(*value));
     }
   }
   JsonObject runs_json;
@@ -116,10 +123,8 @@ void print_json(const ResultsReader& reader) {
 
 int inspect_command(const Arguments& args) {
   po::options_description options("inspect options");
-  options.add_options()
-      ("file", po::value<std::string>()->required(), "results file (HDF5)")
-      ("experiment", "also print the experiment text")
-      ("json", "print one JSON object on stdout");
+  options.add_options()("file", po::value<std::string>()->required(), "results file (HDF5)")(
+      "experiment", "also print the experiment text")("json", "print one JSON object on stdout");
   po::positional_options_description positional;
   positional.add("file", 1);
   po::variables_map vm;
@@ -128,8 +133,10 @@ int inspect_command(const Arguments& args) {
   }
   const std::string path = vm["file"].as<std::string>();
   const ResultsReader reader(path);
-  if (vm.count("json")) print_json(reader);
-  else print_listing(reader, vm.count("experiment") > 0);
+  if (vm.count("json"))
+    print_json(reader);
+  else
+    print_listing(reader, vm.count("experiment") > 0);
   return kExitOk;
 }
 

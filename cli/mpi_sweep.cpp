@@ -12,8 +12,7 @@ namespace {
 
 // mpirun (OpenMPI) or a PMI launcher sets these; a plain start sets none.
 bool launched_by_mpi() {
-  return std::getenv("OMPI_COMM_WORLD_SIZE") || std::getenv("PMI_SIZE") ||
-         std::getenv("PMIX_RANK");
+  return std::getenv("OMPI_COMM_WORLD_SIZE") || std::getenv("PMI_SIZE") || std::getenv("PMIX_RANK");
 }
 
 #ifdef ALLOCSIM_WITH_MPI

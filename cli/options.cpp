@@ -45,11 +45,11 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
     for (const auto& option : parsed.options) {
       const bool stray_positional = option.position_key >= 0 && !positional;
       if (!option.unregistered && !stray_positional) continue;
-      const std::string given = option.original_tokens.empty() ? option.string_key
-                                                               : option.original_tokens.front();
+      const std::string given =
+          option.original_tokens.empty() ? option.string_key : option.original_tokens.front();
       if (stray_positional || given.rfind("-", 0) != 0) {
-        throw InputError("allocsim " + command,
-                         "unexpected argument '" + given + "' (see 'allocsim " + command + " --help')");
+        throw InputError("allocsim " + command, "unexpected argument '" + given +
+                                                    "' (see 'allocsim " + command + " --help')");
       }
       const std::string name = given.substr(given.find_first_not_of('-'));
       throw InputError(given, "unknown option (did you mean --" +
@@ -67,13 +67,15 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
 int checked_threads(const po::variables_map& vm) {
   const int threads = vm["threads"].as<int>();
   if (threads < 1 || threads > kMaxThreads) {
-    throw InputError("--threads", std::to_string(threads) + " is not allowed: use at least 1 and at most " +
+    throw InputError("--threads", std::to_string(threads) +
+                                      " is not allowed: use at least 1 and at most " +
                                       std::to_string(kMaxThreads) + " threads");
   }
   return threads;
 }
 
-std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm) {
+std::vector<std::pair<std::string, std::string>> experiment_values_given(
+    const po::variables_map& vm) {
   std::vector<std::pair<std::string, std::string>> given;
   for (const auto& key : experiment_keys()) {
     if (vm.count(key.name)) given.emplace_back(key.name, vm[key.name].as<std::string>());

@@ -39,6 +39,7 @@ constexpr int kMaxThreads = 1024;
 int checked_threads(const po::variables_map& vm);
 
 // The (key, value) pairs of the experiment keys given on the command line.
-std::vector<std::pair<std::string, std::string>> experiment_values_given(const po::variables_map& vm);
+std::vector<std::pair<std::string, std::string>> experiment_values_given(
+    const po::variables_map& vm);
 
 }  // namespace allocsim::cli

@@ -22,15 +22,20 @@ std::string usage_text() {
          "one per line. A figure whose data the file does not hold is skipped with a note\n"
          "on stderr. Figures (NAME.png, or .svg/.pdf):\n"
          "  <run>-allocations      emergent allocation beside the entropic and exact couplings\n"
-         "                         (runs/<run>/allocation/total, analysis/entropic, analysis/exact)\n"
+         "                         (runs/<run>/allocation/total, analysis/entropic, "
+         "analysis/exact)\n"
          "  <run>-trajectories     prices and marginal errors over the rounds\n"
-         "                         (runs/<run>/prices, allocation/snapshots, allocation/round_end)\n"
+         "                         (runs/<run>/prices, allocation/snapshots, "
+         "allocation/round_end)\n"
          "  nodf-vs-temperature    NODF against the choice temperature, with the null band\n"
          "  wnodf-vs-temperature   the same for WNODF\n"
-         "  epsilon-vs-temperature estimated epsilon (with its interval) against the true temperature\n"
+         "  epsilon-vs-temperature estimated epsilon (with its interval) against the true "
+         "temperature\n"
          "  distance-vs-temperature distance to the entropic and exact couplings\n"
-         "  estimator-scores       an estimator's score card: estimate, error against truth and units,\n"
-         "                         coverage per band (a scores file of allocsim score --out scores.h5)\n"
+         "  estimator-scores       an estimator's score card: estimate, error against truth and "
+         "units,\n"
+         "                         coverage per band (a scores file of allocsim score --out "
+         "scores.h5)\n"
          "Per-run figures are drawn for --run (default: the run with the smallest run_index).";
 }
 
@@ -38,18 +43,20 @@ std::string usage_text() {
 
 int plot_command(const Arguments& args) {
   po::options_description options("plot options");
-  options.add_options()
-      ("file", po::value<std::string>()->required(), "results file (HDF5)")
-      ("out-dir", po::value<std::string>()->default_value("."), "folder for the figures (created if missing)")
-      ("format", po::value<std::string>()->default_value("png"), "png, svg or pdf")
-      ("run", po::value<std::string>(), "the run whose heatmaps and trajectories are drawn (default: the first)")
-      ("script-only", "write the gnuplot scripts (NAME.gp) instead of running gnuplot");
+  options.add_options()("file", po::value<std::string>()->required(), "results file (HDF5)")(
+      "out-dir", po::value<std::string>()->default_value("."),
+      "folder for the figures (created if missing)")(
+      "format", po::value<std::string>()->default_value("png"), "png, svg or pdf")(
+      "run", po::value<std::string>(),
+      "the run whose heatmaps and trajectories are drawn (default: the first)")(
+      "script-only", "write the gnuplot scripts (NAME.gp) instead of running gnuplot");
   po::positional_options_description positional;
   positional.add("file", 1);
   po::variables_map vm;
-  if (!parse_or_help(args, options, positional, vm, "plot",
-                     "RESULTS.h5 [--out-dir DIR] [--format png|svg|pdf] [--run NAME] [--script-only]\n\n" +
-                         usage_text())) {
+  if (!parse_or_help(
+          args, options, positional, vm, "plot",
+          "RESULTS.h5 [--out-dir DIR] [--format png|svg|pdf] [--run NAME] [--script-only]\n\n" +
+              usage_text())) {
     return kExitOk;
   }
   plots::ResultsFiguresRequest request;

@@ -12,12 +12,12 @@
 #include <thread>
 
 #include "allocsim/core/atomic_file.hpp"
-#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/core/output_file.hpp"
 #include "allocsim/core/json.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/experiments/keys.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "commands.hpp"
 #include "mpi_sweep.hpp"
 #include "options.hpp"
@@ -90,7 +90,8 @@ std::function<void(const SweepProgress&)> progress_printer(std::shared_ptr<bool>
 }
 
 std::string usage() {
-  return "usage: allocsim run EXP.ini [--threads N] [--restart] [--csv FILE] [--section.key VALUE ...]\n"
+  return "usage: allocsim run EXP.ini [--threads N] [--restart] [--csv FILE] [--section.key VALUE "
+         "...]\n"
          "                        [--sweep.section.key 'VALUES' ...] [--replicates N]\n"
          "       mpirun -np K allocsim run EXP.ini\n\n"
          "Runs every point of the experiment's [sweep] (one run without one) and writes\n"
@@ -104,10 +105,11 @@ std::string usage() {
 
 JsonObject report_json(const SweepReport& report) {
   JsonObject json;
-  json.add("status", report.left_alone    ? "already complete"
-                     : report.complete      ? "complete"
-                     : report.interrupted ? "interrupted"
-                     : report.failures.empty() ? "partial" : "failed")
+  json.add("status", report.left_alone         ? "already complete"
+                     : report.complete         ? "complete"
+                     : report.interrupted      ? "interrupted"
+                     : report.failures.empty() ? "partial"
+                                               : "failed")
       .add("file", report.output_file)
       .add("runs", static_cast<long long>(report.total))
       .add("already_done", static_cast<long long>(report.already_done))
@@ -116,7 +118,6 @@ JsonObject report_json(const SweepReport& report) {
       .add("seconds", report.seconds);
   return json;
 }
-
 
 // --sweep.KEY options, one per experiment key.
 void add_sweep_options(po::options_description& options) {
@@ -135,7 +136,8 @@ SweepOverrides sweep_overrides(const po::variables_map& vm) {
   }
   if (vm.count("replicates")) {
     const long replicates = vm["replicates"].as<long>();
-    if (replicates < 1) throw InputError("--replicates", std::to_string(replicates) + " is not a whole number >= 1");
+    if (replicates < 1)
+      throw InputError("--replicates", std::to_string(replicates) + " is not a whole number >= 1");
     overrides.replicates = replicates;
   }
   return overrides;
@@ -151,17 +153,19 @@ int exit_code(const SweepReport& report) {
 
 int run_command(const Arguments& args) {
   po::options_description options("run options");
-  options.add_options()
-      ("experiment", po::value<std::string>(), "experiment file (INI)")
-      ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
-       "worker threads (results do not depend on it; at most 1024)")
-      ("restart", "discard the kept runs or the finished file of another experiment (only files allocsim wrote)")
-      ("csv", po::value<std::string>(), "also write the summary table to this CSV file")
-      ("replicates", po::value<long>(), "runs per sweep point (replaces the file's sweep.replicates)")
-      ("list-keys", "list every experiment key with its default and valid values")
-      ("quiet", "no progress on stderr")
-      ("json", "print one JSON object on stdout")
-      ("help,h", "show this help");
+  options.add_options()("experiment", po::value<std::string>(), "experiment file (INI)")(
+      "threads",
+      po::value<int>()->default_value(
+          static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
+      "worker threads (results do not depend on it; at most 1024)")(
+      "restart",
+      "discard the kept runs or the finished file of another experiment (only files allocsim "
+      "wrote)")("csv", po::value<std::string>(), "also write the summary table to this CSV file")(
+      "replicates", po::value<long>(),
+      "runs per sweep point (replaces the file's sweep.replicates)")(
+      "list-keys", "list every experiment key with its default and valid values")(
+      "quiet", "no progress on stderr")("json", "print one JSON object on stdout")(
+      "help,h", "show this help");
   add_experiment_key_options(options);
   add_sweep_options(options);
   po::positional_options_description positional;
@@ -175,7 +179,8 @@ int run_command(const Arguments& args) {
     std::cout << experiment_keys_help() << "\n" << sweep_syntax_help();
     return kExitOk;
   }
-  if (!vm.count("experiment")) throw InputError("allocsim run", "name an experiment file (see --help)");
+  if (!vm.count("experiment"))
+    throw InputError("allocsim run", "name an experiment file (see --help)");
   const int threads = checked_threads(vm);
   silence_hdf5_diagnostics();
   MpiSession mpi;
@@ -188,7 +193,8 @@ int run_command(const Arguments& args) {
     others.emplace_back("output.file (the results file)", plan.output_file);
     require_distinct(csv, "--csv", others);
     const ResolvedOutput target = resolve_output(csv);
-    if (target.kind == OutputKind::directory) throw InputError("--csv", csv + " is a directory; name a CSV file");
+    if (target.kind == OutputKind::directory)
+      throw InputError("--csv", csv + " is a directory; name a CSV file");
   }
 
   SweepRequest request;
@@ -206,12 +212,14 @@ int run_command(const Arguments& args) {
   if (*bar_open) std::cerr << "\n";
   if (mpi.rank() != 0) return report.failures.empty() ? kExitOk : kExitProblem;
 
-  if (report.complete && vm.count("csv")) write_summary_csv(vm["csv"].as<std::string>(), report.summary);
+  if (report.complete && vm.count("csv"))
+    write_summary_csv(vm["csv"].as<std::string>(), report.summary);
   if (vm.count("json")) {
     JsonObject json = report_json(report);
     std::cout << json.str() << "\n";
   } else {
-    (report.complete && !report.left_alone ? std::cout : std::cerr) << "allocsim run: " << report.brief() << "\n";
+    (report.complete && !report.left_alone ? std::cout : std::cerr)
+        << "allocsim run: " << report.brief() << "\n";
   }
   return exit_code(report);
 }

@@ -1,15 +1,15 @@
 // allocsim simulate: one run of an experiment, written to a results file.
 
 #include <chrono>
-#include <sstream>
 #include <iostream>
+#include <sstream>
 
-#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/memory_limit.hpp"
 #include "allocsim/experiments/keys.hpp"
 #include "allocsim/experiments/simulation.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -24,8 +24,8 @@ constexpr double kSimulationMatrices = 8;
 
 void require_simulation_memory(const ExperimentValues& values) {
   const std::string& where = values.where("scenario.agents");
-  require_memory(dense_matrix_bytes(values.real("scenario.agents"), values.real("scenario.partners"),
-                                    kSimulationMatrices),
+  require_memory(dense_matrix_bytes(values.real("scenario.agents"),
+                                    values.real("scenario.partners"), kSimulationMatrices),
                  "a simulation of " + values.text("scenario.agents") + " x " +
                      values.text("scenario.partners") + " cells",
                  where == "--scenario.agents" ? where
@@ -36,13 +36,12 @@ void require_simulation_memory(const ExperimentValues& values) {
 
 po::options_description simulate_options() {
   po::options_description options("simulate options");
-  options.add_options()
-      ("config", po::value<std::string>(), "experiment file (INI); --section.key options win over it")
-      ("out", po::value<std::string>(), "results file to write (default: output.file)")
-      ("threads", po::value<int>()->default_value(1), "worker threads (results do not depend on it)")
-      ("quiet", "no progress on stderr")
-      ("json", "print one JSON object on stdout")
-      ("help,h", "show this help");
+  options.add_options()("config", po::value<std::string>(),
+                        "experiment file (INI); --section.key options win over it")(
+      "out", po::value<std::string>(), "results file to write (default: output.file)")(
+      "threads", po::value<int>()->default_value(1),
+      "worker threads (results do not depend on it)")("quiet", "no progress on stderr")(
+      "json", "print one JSON object on stdout")("help,h", "show this help");
   add_experiment_key_options(options);
   return options;
 }
@@ -102,7 +101,9 @@ int simulate_command(const Arguments& args) {
   const SimulationReport report = simulate_to_file(values, request);
   if (!report.infeasibility.empty()) {
     std::cerr << "allocsim simulate: warning: no coupling meets the budgets and capacities under "
-                 "the access mask (" << report.infeasibility << "); prices drift and queue leaves "
+                 "the access mask ("
+              << report.infeasibility
+              << "); prices drift and queue leaves "
                  "units unplaced\n";
   }
 

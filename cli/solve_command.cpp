@@ -1,10 +1,10 @@
 // allocsim solve: exact or entropic transport from CSV files.
-#include <iostream>
 #include <algorithm>
 #include <cmath>
+#include <iostream>
 #include <limits>
-#include <thread>
 #include <optional>
+#include <thread>
 
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/analysis/exact_transport.hpp"
@@ -32,8 +32,8 @@ Vector read_aligned_vector(const std::string& path, const std::vector<std::strin
                            Eigen::Index count, const std::string& gains_file, const char* side,
                            const char* noun) {
   const LabeledVector v = read_vector_csv(path);
-  const LabelAlignment a = align_labels({labels, count, gains_file, ""},
-                                        {v.labels, v.values.size(), path, noun}, side);
+  const LabelAlignment a =
+      align_labels({labels, count, gains_file, ""}, {v.labels, v.values.size(), path, noun}, side);
   return reorder_entries(v.values, a.order);
 }
 
@@ -55,9 +55,9 @@ SolveInputs read_inputs(const po::variables_map& vm) {
   require_unique_labels(gains.column_labels, in.sources.gains, "column");
   in.problem.budgets = read_aligned_vector(in.sources.budgets, gains.row_labels,
                                            gains.values.rows(), in.sources.gains, "row", "budgets");
-  in.problem.capacities = read_aligned_vector(in.sources.capacities, gains.column_labels,
-                                              gains.values.cols(), in.sources.gains, "column",
-                                              "capacities");
+  in.problem.capacities =
+      read_aligned_vector(in.sources.capacities, gains.column_labels, gains.values.cols(),
+                          in.sources.gains, "column", "capacities");
   if (vm.count("access")) {
     in.sources.access = vm["access"].as<std::string>();
     in.problem.access = read_aligned_access(in.sources.access, gains, in.sources.gains);
@@ -104,24 +104,37 @@ SolveReport solve_exactly(const TransportProblem& problem, double mass_units) {
     throw InputError("--mass-units", std::string(e.what()).substr(e.where().size() + 2));
   }
   const ExactResult r = solve_exact(problem, options);
-  SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {}, r.brief(), r.total_gain};
-  report.json.add("status", report.status).add("method", "exact").add("total_gain", r.total_gain)
-      .add("iterations", 0).add("marginal_error", r.marginal_error)
-      .add("support_size", static_cast<long long>(r.support_size)).add("is_forest", r.support_is_forest)
-      .add_null("epsilon").add("seconds", r.seconds);
+  SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {},
+                     r.brief(),           r.total_gain};
+  report.json.add("status", report.status)
+      .add("method", "exact")
+      .add("total_gain", r.total_gain)
+      .add("iterations", 0)
+      .add("marginal_error", r.marginal_error)
+      .add("support_size", static_cast<long long>(r.support_size))
+      .add("is_forest", r.support_is_forest)
+      .add_null("epsilon")
+      .add("seconds", r.seconds);
   return report;
 }
 
 SolveReport solve_entropically(const TransportProblem& problem, const EntropicOptions& options) {
   const EntropicResult r = solve_entropic(problem, options);
-  SolveReport report{to_string(r.status), r.converged(), r.message, r.coupling, {}, r.brief(), r.total_gain};
+  SolveReport report{to_string(r.status), r.converged(), r.message, r.coupling, {},
+                     r.brief(),           r.total_gain};
   const long long support = r.coupling.size() ? (r.coupling.array() > 0).count() : 0;
-  report.json.add("status", report.status).add("method", "entropic").add("total_gain", r.total_gain)
-      .add("iterations", static_cast<long long>(r.iterations)).add("marginal_error", r.marginal_error)
+  report.json.add("status", report.status)
+      .add("method", "entropic")
+      .add("total_gain", r.total_gain)
+      .add("iterations", static_cast<long long>(r.iterations))
+      .add("marginal_error", r.marginal_error)
       .add("support_size", support)
       .add("is_forest", r.coupling.size() ? support_is_forest(r.coupling) : false)
-      .add("epsilon", r.epsilon).add("entropy", r.entropy).add("primal_value", r.primal_value)
-      .add("dual_value", r.dual_value).add("stages", static_cast<long long>(r.stages))
+      .add("epsilon", r.epsilon)
+      .add("entropy", r.entropy)
+      .add("primal_value", r.primal_value)
+      .add("dual_value", r.dual_value)
+      .add("stages", static_cast<long long>(r.stages))
       .add("seconds", r.seconds);
   return report;
 }
@@ -131,8 +144,9 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
   const bool absolute = vm.count("epsilon") > 0;
   const bool relative = vm.count("epsilon-of-range") > 0;
   if (absolute == relative) {
-    throw InputError("--method entropic", "needs exactly one of --epsilon E "
-                                       "(gain units) or --epsilon-of-range R (share of the gain range)");
+    throw InputError("--method entropic",
+                     "needs exactly one of --epsilon E "
+                     "(gain units) or --epsilon-of-range R (share of the gain range)");
   }
   if (absolute) {
     options.epsilon = vm["epsilon"].as<double>();
@@ -155,23 +169,27 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
 
 int solve_command(const Arguments& args) {
   po::options_description options("options");
-  options.add_options()
-      ("gains", po::value<std::string>()->required(), "CSV matrix of gains (agents x partners)")
-      ("budgets", po::value<std::string>()->required(), "CSV vector of agent budgets")
-      ("capacities", po::value<std::string>()->required(), "CSV vector of partner capacities")
-      ("access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")
-      ("method", po::value<std::string>()->default_value("exact"), "exact | entropic")
-      ("epsilon", po::value<double>(), "transport temperature in gain units (entropic)")
-      ("epsilon-of-range", po::value<double>(), "transport temperature as a share of the gain range")
-      ("tolerance", po::value<double>()->default_value(1e-9, "1e-9"), "entropic: relative L1 marginal violation")
-      ("max-iterations", po::value<long>()->default_value(100000), "entropic: Sinkhorn iteration limit")
-      ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
-       "entropic: threads sharing each iteration")
-      ("mass-units", po::value<double>()->default_value(1e12, "1e12"),
-       "exact: integer units of the total mass (resolution of the marginals), in [1e3, 1e15]")
-      ("rescale", "scale the capacities so their total equals the budgets' total")
-      ("out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")
-      ("json", "print one JSON object on stdout instead of the summary line");
+  options.add_options()("gains", po::value<std::string>()->required(),
+                        "CSV matrix of gains (agents x partners)")(
+      "budgets", po::value<std::string>()->required(), "CSV vector of agent budgets")(
+      "capacities", po::value<std::string>()->required(), "CSV vector of partner capacities")(
+      "access", po::value<std::string>(), "CSV 0/1 matrix; 0 = the pair can never be used")(
+      "method", po::value<std::string>()->default_value("exact"), "exact | entropic")(
+      "epsilon", po::value<double>(), "transport temperature in gain units (entropic)")(
+      "epsilon-of-range", po::value<double>(),
+      "transport temperature as a share of the gain range")(
+      "tolerance", po::value<double>()->default_value(1e-9, "1e-9"),
+      "entropic: relative L1 marginal violation")(
+      "max-iterations", po::value<long>()->default_value(100000),
+      "entropic: Sinkhorn iteration limit")("threads",
+                                            po::value<int>()->default_value(static_cast<int>(
+                                                std::max(1u, std::thread::hardware_concurrency()))),
+                                            "entropic: threads sharing each iteration")(
+      "mass-units", po::value<double>()->default_value(1e12, "1e12"),
+      "exact: integer units of the total mass (resolution of the marginals), in [1e3, 1e15]")(
+      "rescale", "scale the capacities so their total equals the budgets' total")(
+      "out", po::value<std::string>(), "write the coupling to this CSV file ('-': stdout)")(
+      "json", "print one JSON object on stdout instead of the summary line");
   po::variables_map vm;
   if (!parse_or_help(args, options, {}, vm, "solve",
                      "--gains G.csv --budgets r.csv --capacities c.csv [--access A.csv] "
@@ -188,7 +206,8 @@ int solve_command(const Arguments& args) {
   if (vm.count("out") && vm["out"].as<std::string>() != "-") {
     const std::string out = vm["out"].as<std::string>();
     std::vector<std::pair<std::string, std::string>> inputs = {
-        {"--gains", in.sources.gains}, {"--budgets", in.sources.budgets},
+        {"--gains", in.sources.gains},
+        {"--budgets", in.sources.budgets},
         {"--capacities", in.sources.capacities}};
     if (vm.count("access")) inputs.emplace_back("--access", in.sources.access);
     require_distinct(out, "--out", inputs);
@@ -198,9 +217,10 @@ int solve_command(const Arguments& args) {
                                  ? solve_exactly(in.problem, vm["mass-units"].as<double>())
                                  : solve_entropically(in.problem, entropic_options(vm, in.problem));
   if (report.ok && !std::isfinite(report.total_gain)) {
-    throw InputError(in.sources.gains, "the total gain exceeds the largest number a double holds "
-                                       "(about 1.8e308); divide the gains or the masses by a "
-                                       "constant (the optimal coupling does not change)");
+    throw InputError(in.sources.gains,
+                     "the total gain exceeds the largest number a double holds "
+                     "(about 1.8e308); divide the gains or the masses by a "
+                     "constant (the optimal coupling does not change)");
   }
   const bool coupling_to_stdout = vm.count("out") && vm["out"].as<std::string>() == "-";
   if (vm.count("json")) {
@@ -211,7 +231,8 @@ int solve_command(const Arguments& args) {
     (coupling_to_stdout ? std::cerr : std::cout) << report.brief << "\n";
   }
   if (!report.ok) {
-    const std::string where = report.status == "infeasible" ? in.sources.access : "--method " + method;
+    const std::string where =
+        report.status == "infeasible" ? in.sources.access : "--method " + method;
     std::cerr << "allocsim solve: error: " << where << ": " << report.status << ": "
               << report.message << "\n";
     return kExitProblem;

@@ -32,14 +32,18 @@ void remember_temporary(const std::string& name) {
   std::free(old);
 }
 
-extern "C" void exit_on_signal(int signal_number) { remove_temporaries_and_exit(128 + signal_number); }
+extern "C" void exit_on_signal(int signal_number) {
+  remove_temporaries_and_exit(128 + signal_number);
+}
 
 }  // namespace
 
 // An output buffer on a file descriptor that remembers the first errno.
 class AtomicFile::Buffer : public std::streambuf {
  public:
-  explicit Buffer(int fd) : fd_(fd), data_(1 << 16) { setp(data_.data(), data_.data() + data_.size()); }
+  explicit Buffer(int fd) : fd_(fd), data_(1 << 16) {
+    setp(data_.data(), data_.data() + data_.size());
+  }
   ~Buffer() override {
     if (fd_ >= 0) ::close(fd_);
   }

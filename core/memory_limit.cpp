@@ -87,8 +87,8 @@ void require_memory(double bytes, const std::string& what, const std::string& wh
                     const std::string& advice) {
   const double available = available_memory_bytes();
   if (!(bytes > available) && std::isfinite(bytes)) return;
-  std::string text = what + " needs about " + format_bytes(bytes) +
-                     " of memory (estimate), but " + format_bytes(available) + " is available";
+  std::string text = what + " needs about " + format_bytes(bytes) + " of memory (estimate), but " +
+                     format_bytes(available) + " is available";
   if (std::getenv(kLimitVariable)) text += std::string(" (") + kLimitVariable + ")";
   text += "; " + (advice.empty() ? std::string("use a smaller problem") : advice);
   throw InputError(where, text);

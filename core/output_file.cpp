@@ -139,7 +139,8 @@ int remove_orphan_temporaries_in(const std::string& folder) {
     const std::string name = entry.path().filename().string();
     const auto at = name.rfind(".tmp-");
     if (at == std::string::npos) continue;
-    if (process_is_gone(temporary_pid(name, name.substr(0, at))) && fs::remove(entry.path(), error)) {
+    if (process_is_gone(temporary_pid(name, name.substr(0, at))) &&
+        fs::remove(entry.path(), error)) {
       ++removed;
     }
   }
@@ -177,7 +178,8 @@ OutputLock::OutputLock(const std::string& path) : lock_path_(follow_links(path) 
     }
     // The holder before us may have removed the file after we opened it:
     // hold the lock only on the file the name still leads to.
-    struct stat held {}, named {};
+    struct stat held {
+    }, named{};
     if (::fstat(fd_, &held) == 0 && ::stat(lock_path_.c_str(), &named) == 0 &&
         held.st_ino == named.st_ino && held.st_dev == named.st_dev) {
       const std::time_t now = std::time(nullptr);
@@ -185,8 +187,7 @@ OutputLock::OutputLock(const std::string& path) : lock_path_(follow_links(path) 
       localtime_r(&now, &local);
       char since[32];
       std::strftime(since, sizeof since, "%Y-%m-%d %H:%M:%S", &local);
-      const std::string text =
-          "pid " + std::to_string(::getpid()) + ", since " + since + "\n";
+      const std::string text = "pid " + std::to_string(::getpid()) + ", since " + since + "\n";
       remove_on_exit_signal(lock_path_);
       if (::ftruncate(fd_, 0) == 0) {
         [[maybe_unused]] const auto written = ::pwrite(fd_, text.data(), text.size(), 0);

@@ -53,9 +53,8 @@ long binomial_from_zero(RandomStream& rng, long n, double p) {
 long binomial_from_mode(RandomStream& rng, long n, double p) {
   const double q = 1.0 - p;
   const long mode = std::min(n, static_cast<long>(std::floor((n + 1) * p)));
-  const double pmode =
-      std::exp(log_factorial(n) - log_factorial(mode) - log_factorial(n - mode) +
-               mode * std::log(p) + (n - mode) * std::log1p(-p));
+  const double pmode = std::exp(log_factorial(n) - log_factorial(mode) - log_factorial(n - mode) +
+                                mode * std::log(p) + (n - mode) * std::log1p(-p));
   double u = rng.uniform() - pmode;
   if (u <= 0) return mode;
   long hi = mode, lo = mode;
@@ -188,8 +187,8 @@ void add_sorted_uniform_draws(RandomStream& rng, long n, const double* weights, 
 
 }  // namespace
 
-void add_multinomial(RandomStream& rng, long n, const double* weights, long size,
-                     double weight_sum, double* out) {
+void add_multinomial(RandomStream& rng, long n, const double* weights, long size, double weight_sum,
+                     double* out) {
   if (n <= 0) return;
   if (n <= kSortedUniformFactor * size) {
     add_sorted_uniform_draws(rng, n, weights, size, out);
@@ -240,11 +239,10 @@ std::vector<long> apportion(long total, const std::vector<double>& shares) {
   std::iota(order.begin(), order.end(), 0);
   const long left = std::min<long>(total - given, static_cast<long>(order.size()));
   if (left > 0) {
-    std::partial_sort(order.begin(), order.begin() + left, order.end(),
-                      [&](std::size_t a, std::size_t b) {
-                        return remainders[a] > remainders[b] ||
-                               (remainders[a] == remainders[b] && a < b);
-                      });
+    std::partial_sort(
+        order.begin(), order.begin() + left, order.end(), [&](std::size_t a, std::size_t b) {
+          return remainders[a] > remainders[b] || (remainders[a] == remainders[b] && a < b);
+        });
     for (long k = 0; k < left; ++k) ++parts[order[static_cast<std::size_t>(k)]];
   }
   return parts;

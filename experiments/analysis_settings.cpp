@@ -4,11 +4,13 @@
 
 namespace allocsim {
 
-AllocationAnalysisOptions analysis_options(const ExperimentValues& values, std::uint64_t run_index) {
+AllocationAnalysisOptions analysis_options(const ExperimentValues& values,
+                                           std::uint64_t run_index) {
   AllocationAnalysisOptions options;
   options.temperature.confidence = values.real("analysis.confidence");
   options.binarize.rule = binarize_rule_from_string(values.text("analysis.binarize"));
-  if (values.real("analysis.threshold") > 0) options.binarize.threshold = values.real("analysis.threshold");
+  if (values.real("analysis.threshold") > 0)
+    options.binarize.threshold = values.real("analysis.threshold");
   if (values.text("analysis.nulls") != "none") {
     NullOptions nulls;
     nulls.model = null_model_from_string(values.text("analysis.nulls"));

@@ -26,8 +26,7 @@ ScenarioOptions scenario_options(const ExperimentValues& v) {
   o.access_density = v.real("scenario.access_density");
   o.access_file = v.text("scenario.access_file");
   o.seed = static_cast<std::uint64_t>(v.integer("scenario.seed"));
-  if (o.gains == GainsKind::file && !v.given("scenario.agents") &&
-      !v.given("scenario.partners")) {
+  if (o.gains == GainsKind::file && !v.given("scenario.agents") && !v.given("scenario.partners")) {
     o.agents = 0;  // taken from the file
     o.partners = 0;
   }

@@ -16,8 +16,7 @@ namespace {
 
 namespace po = boost::program_options;
 
-ExperimentKey make_key(std::string name, KeyKind kind, std::string value,
-                       std::string description) {
+ExperimentKey make_key(std::string name, KeyKind kind, std::string value, std::string description) {
   ExperimentKey key;
   key.name = std::move(name);
   key.kind = kind;
@@ -28,16 +27,17 @@ ExperimentKey make_key(std::string name, KeyKind kind, std::string value,
 
 ExperimentKey integer_key(std::string name, std::string value, std::string description,
                           double lowest) {
-  ExperimentKey key = make_key(std::move(name), KeyKind::integer, std::move(value), std::move(description));
+  ExperimentKey key =
+      make_key(std::move(name), KeyKind::integer, std::move(value), std::move(description));
   key.lowest = lowest;
   key.has_lowest = true;
   return key;
 }
 
-ExperimentKey real_key(std::string name, std::string value, std::string description,
-                       double lowest, bool lowest_open, double highest = 0,
-                       bool has_highest = false) {
-  ExperimentKey key = make_key(std::move(name), KeyKind::real, std::move(value), std::move(description));
+ExperimentKey real_key(std::string name, std::string value, std::string description, double lowest,
+                       bool lowest_open, double highest = 0, bool has_highest = false) {
+  ExperimentKey key =
+      make_key(std::move(name), KeyKind::real, std::move(value), std::move(description));
   key.lowest = lowest;
   key.has_lowest = true;
   key.lowest_open = lowest_open;
@@ -48,7 +48,8 @@ ExperimentKey real_key(std::string name, std::string value, std::string descript
 
 ExperimentKey word_key(std::string name, std::string value, std::string description,
                        std::vector<std::string> words) {
-  ExperimentKey key = make_key(std::move(name), KeyKind::word, std::move(value), std::move(description));
+  ExperimentKey key =
+      make_key(std::move(name), KeyKind::word, std::move(value), std::move(description));
   key.words = std::move(words);
   return key;
 }
@@ -69,8 +70,7 @@ std::vector<ExperimentKey> build_keys() {
       word_key("scenario.gains", "trait-distance", "how the gains are generated",
                {"rank-product", "trait-distance", "random", "features", "file"}),
       real_key("scenario.gains_scale", "1", "factor on every generated gain", 0, true),
-      real_key("scenario.gains_exponent", "2", "p of trait-distance gains -|x_i - y_j|^p", 0,
-               true),
+      real_key("scenario.gains_exponent", "2", "p of trait-distance gains -|x_i - y_j|^p", 0, true),
       integer_key("scenario.gains_rank", "2", "number of latent features of features gains", 1),
       path_key("scenario.gains_file", "CSV gain matrix for gains = file (agents x partners)"),
       word_key("scenario.budgets", "uniform", "how the agents' budgets are generated", masses),
@@ -85,21 +85,21 @@ std::vector<ExperimentKey> build_keys() {
                "CSV capacities for capacities = file (one per partner)"),
       word_key("scenario.access", "full", "which agent may use which partner",
                {"full", "threshold", "random", "file"}),
-      real_key("scenario.access_density", "0.5", "share of allowed pairs of random access", 0,
-               true, 1, true),
+      real_key("scenario.access_density", "0.5", "share of allowed pairs of random access", 0, true,
+               1, true),
       path_key("scenario.access_file", "CSV 0/1 matrix for access = file (agents x partners)"),
       integer_key("scenario.seed", "1", "experiment seed of every random draw", 0),
       word_key("dynamics.rule", "price", "choice-and-capacity mechanism",
                {"price", "gumbel", "queue", "learn"}),
       real_key("dynamics.temperature", "0.1", "choice temperature T, in gain units", 0, true),
       integer_key("dynamics.rounds", "500", "rounds to play", 1),
-      integer_key("dynamics.units", "10000",
-                  "budget units spent per round by all agents together", 1),
+      integer_key("dynamics.units", "10000", "budget units spent per round by all agents together",
+                  1),
       integer_key("dynamics.burn_in", "100",
                   "first rounds left out of the cumulative allocation (< rounds)", 0),
       integer_key("dynamics.window", "50", "rounds per allocation snapshot", 1),
-      real_key("dynamics.price_step", "0.5", "eta of the price update (0 = fixed prices)", 0,
-               false, 1, true),
+      real_key("dynamics.price_step", "0.5", "eta of the price update (0 = fixed prices)", 0, false,
+               1, true),
       boolean_key("dynamics.mean_field", "false",
                   "expected flows instead of sampled units (price and gumbel)"),
       real_key("dynamics.learning_step", "0.1", "alpha of learn's estimate update", 0, true, 1,
@@ -162,8 +162,8 @@ std::string checked_value(const ExperimentKey& key, const std::string& text,
                           const std::string& where) {
   const std::string place = key_place(where, key.name);
   auto fail = [&](const std::string& why) {
-    throw InputError(place, "'" + text + "' is not valid: " + why + " (expected " +
-                                key.valid_values() + ")");
+    throw InputError(
+        place, "'" + text + "' is not valid: " + why + " (expected " + key.valid_values() + ")");
   };
   double number = 0;
   switch (key.kind) {
@@ -182,7 +182,8 @@ std::string checked_value(const ExperimentKey& key, const std::string& text,
     case KeyKind::integer:
     case KeyKind::real:
       if (!parse_real(text, number)) fail("not a number");
-      if (key.kind == KeyKind::integer && (number != std::floor(number) || std::abs(number) > 9e15)) {
+      if (key.kind == KeyKind::integer &&
+          (number != std::floor(number) || std::abs(number) > 9e15)) {
         fail("not a whole number");
       }
       if (key.has_lowest && (key.lowest_open ? !(number > key.lowest) : !(number >= key.lowest))) {
@@ -388,12 +389,13 @@ void read_experiment_file(const std::string& path, ExperimentValues& values, Swe
   } catch (const po::error& e) {
     throw InputError(location(path, lines.first_bad_line),
                      std::string("not an INI line: expected 'key = value', [section] or "
-                                 "# comment (") + e.what() + ")");
+                                 "# comment (") +
+                         e.what() + ")");
   }
   for (const auto& option : parsed.options) {
     const auto found = lines.key_lines.find(option.string_key);
-    const std::vector<long> at = found == lines.key_lines.end() ? std::vector<long>{}
-                                                                : found->second;
+    const std::vector<long> at =
+        found == lines.key_lines.end() ? std::vector<long>{} : found->second;
     const std::string where = location(path, at.empty() ? 0 : at.front());
     if (at.size() > 1) {
       throw InputError(location(path, at[1]) + ": " + option.string_key,

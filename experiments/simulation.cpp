@@ -79,14 +79,15 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
   group.set_text(layout::kFeasible, explain_infeasibility(problem).empty() ? "true" : "false");
   group.write_scenario(problem);
   AllocationRecorder recorder = group.record_allocation(problem.agents(), problem.partners());
-  const RunResult result =
-      run_dynamics(problem, settings.dynamics, settings.scenario.seed, run_index, &recorder,
-                   progress);
+  const RunResult result = run_dynamics(problem, settings.dynamics, settings.scenario.seed,
+                                        run_index, &recorder, progress);
   recorder.finish(result);
   if (values.boolean("analysis.enabled")) {
-    const AllocationInput input{result.total, problem.gains, problem.access,
-                                {run + "/" + layout::kTotal, run + "/" + layout::kGains,
-                                 run + "/" + layout::kAccess}};
+    const AllocationInput input{
+        result.total,
+        problem.gains,
+        problem.access,
+        {run + "/" + layout::kTotal, run + "/" + layout::kGains, run + "/" + layout::kAccess}};
     group.write_report(analyze_allocation(input, analysis_options(values, run_index)));
   } else {
     group.clear_analysis();
@@ -105,8 +106,9 @@ void require_results_or_nothing(const std::string& path, const std::string& wher
   try {
     ResultsReader existing(path);
   } catch (const InputError&) {
-    throw InputError(where, path + " exists and was not written by allocsim (no allocsim format "
-                                   "attribute); remove it or choose another output");
+    throw InputError(where, path +
+                                " exists and was not written by allocsim (no allocsim format "
+                                "attribute); remove it or choose another output");
   }
 }
 
@@ -122,10 +124,14 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
                                 : values.where("output.file") + ": output.file";
   const ResolvedOutput output = require_regular_output(settings.output_file, where);
   std::vector<std::pair<std::string, std::string>> inputs = request.inputs;
-  if (settings.scenario.gains == GainsKind::file) inputs.emplace_back("scenario.gains_file", settings.scenario.gains_file);
-  if (settings.scenario.budgets == MassKind::file) inputs.emplace_back("scenario.budgets_file", settings.scenario.budgets_file);
-  if (settings.scenario.capacities == MassKind::file) inputs.emplace_back("scenario.capacities_file", settings.scenario.capacities_file);
-  if (settings.scenario.access == AccessKind::file) inputs.emplace_back("scenario.access_file", settings.scenario.access_file);
+  if (settings.scenario.gains == GainsKind::file)
+    inputs.emplace_back("scenario.gains_file", settings.scenario.gains_file);
+  if (settings.scenario.budgets == MassKind::file)
+    inputs.emplace_back("scenario.budgets_file", settings.scenario.budgets_file);
+  if (settings.scenario.capacities == MassKind::file)
+    inputs.emplace_back("scenario.capacities_file", settings.scenario.capacities_file);
+  if (settings.scenario.access == AccessKind::file)
+    inputs.emplace_back("scenario.access_file", settings.scenario.access_file);
   require_distinct(settings.output_file, where, inputs);
   // Build the scenario once before creating the file, so bad input (files,
   // shapes, access) fails without leaving anything behind.

@@ -49,9 +49,10 @@ std::vector<std::string> spaced_values(const std::string& kind, const std::smatc
   std::vector<std::string> values;
   for (long k = 0; k < count; ++k) {
     const double t = count == 1 ? 0.0 : static_cast<double>(k) / static_cast<double>(count - 1);
-    const double value = kind == "log"
-                             ? std::pow(10.0, std::log10(start) + t * (std::log10(stop) - std::log10(start)))
-                             : start + t * (stop - start);
+    const double value =
+        kind == "log"
+            ? std::pow(10.0, std::log10(start) + t * (std::log10(stop) - std::log10(start)))
+            : start + t * (stop - start);
     values.push_back(sweep_number(value));
   }
   return values;

@@ -1,15 +1,15 @@
 #include "allocsim/experiments/sweep_runner.hpp"
 
+#include <sys/statvfs.h>
 #include <algorithm>
+#include <cerrno>
 #include <chrono>
 #include <cmath>
 #include <cstdio>
-#include <map>
-#include <filesystem>
-#include <sys/statvfs.h>
-#include <cerrno>
 #include <cstring>
+#include <filesystem>
 #include <fstream>
+#include <map>
 #include <mutex>
 #include <set>
 #include <sstream>
@@ -20,11 +20,11 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/memory_limit.hpp"
 #include "allocsim/core/output_file.hpp"
-#include "allocsim/sim/scenario.hpp"
-#include "allocsim/results/results_reader.hpp"
-#include "allocsim/results/run_store.hpp"
 #include "allocsim/experiments/simulation.hpp"
 #include "allocsim/results/layout.hpp"
+#include "allocsim/results/results_reader.hpp"
+#include "allocsim/results/run_store.hpp"
+#include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {
 namespace {
@@ -98,12 +98,15 @@ std::string effective_experiment(const SweepPlan& plan) {
                                !plan.base.given("scenario.agents") &&
                                !plan.base.given("scenario.partners");
   for (const auto& key : experiment_keys()) {
-    if (std::find(plan.swept_keys.begin(), plan.swept_keys.end(), key.name) != plan.swept_keys.end())
+    if (std::find(plan.swept_keys.begin(), plan.swept_keys.end(), key.name) !=
+        plan.swept_keys.end())
       continue;
     if (key.name == "output.file") continue;  // where, not what
-    const bool from_file = shape_from_file && (key.name == "scenario.agents" || key.name == "scenario.partners");
+    const bool from_file =
+        shape_from_file && (key.name == "scenario.agents" || key.name == "scenario.partners");
     out << key.name << " = "
-        << (from_file ? std::string("(from the gains file)") : normalised(key, plan.base.text(key.name)))
+        << (from_file ? std::string("(from the gains file)")
+                      : normalised(key, plan.base.text(key.name)))
         << "\n";
   }
   for (const auto& axis : plan.sweep.axes) {
@@ -179,11 +182,13 @@ std::string finished_file_difference(const SweepPlan& plan, const ResultsReader&
         const auto number = attribute_number(stored, key.name);
         same = number && *number == values.real(key.name);
       }
-      if (!same) return run + ": " + key.name + " is " + (there.empty() ? "(none)" : there) +
-                        " there, " + now + " now";
+      if (!same)
+        return run + ": " + key.name + " is " + (there.empty() ? "(none)" : there) + " there, " +
+               now + " now";
     }
     const auto replicate = attribute_number(stored, layout::kReplicate);
-    if (!replicate || *replicate != static_cast<double>(plan.points[static_cast<std::size_t>(k)].replicate)) {
+    if (!replicate ||
+        *replicate != static_cast<double>(plan.points[static_cast<std::size_t>(k)].replicate)) {
       return run + ": another replicate";
     }
   }
@@ -246,7 +251,8 @@ void play_run(const SweepPlan& plan, const RunStore& store, long k,
     ResultsFile part(path, plan.experiment_text, tool_version);
     const std::string run = run_name(k);
     record_run(part, run, static_cast<std::uint64_t>(k), values, settings, nullptr);
-    part.run(run).set_integer(layout::kReplicate, plan.points[static_cast<std::size_t>(k)].replicate);
+    part.run(run).set_integer(layout::kReplicate,
+                              plan.points[static_cast<std::size_t>(k)].replicate);
     part.commit();
   } catch (const std::exception&) {
     throw;
@@ -277,11 +283,11 @@ void require_room_for_merge(const SweepPlan& plan, const RunStore& store, long r
   if (::statvfs(folder.c_str(), &disk) != 0) return;
   const double room = static_cast<double>(disk.f_bavail) * static_cast<double>(disk.f_frsize);
   if (needed > room) {
-    throw WriteError(plan.output_file, std::string(std::strerror(ENOSPC)) + " (the merge needs about " +
-                                           format_bytes(needed) + ", " + format_bytes(room) +
-                                           " is free; the " + std::to_string(runs) +
-                                           " finished runs are kept in " + store.folder() +
-                                           ": free some space and run the same command again)");
+    throw WriteError(plan.output_file,
+                     std::string(std::strerror(ENOSPC)) + " (the merge needs about " +
+                         format_bytes(needed) + ", " + format_bytes(room) + " is free; the " +
+                         std::to_string(runs) + " finished runs are kept in " + store.folder() +
+                         ": free some space and run the same command again)");
   }
 }
 
@@ -298,7 +304,8 @@ SummaryTable merge_parts(const SweepPlan& plan, const RunStore& store, long runs
   } catch (const std::exception& e) {
     const int error = errno;
     throw WriteError(plan.output_file, hdf5_write_cause(plan.output_file, e.what(), error) +
-                                           " (the finished runs are kept in " + store.folder() + ")");
+                                           " (the finished runs are kept in " + store.folder() +
+                                           ")");
   } catch (...) {
     const int error = errno;
     throw WriteError(plan.output_file,
@@ -331,10 +338,12 @@ bool finished_already(const SweepPlan& plan, bool restart, SummaryTable& summary
   }
   const auto version = attribute_number(reader->root_attributes(), layout::kFormatVersion);
   if (version && *version > static_cast<double>(layout::kResultsFormatVersion)) {
-    throw InputError(plan.output_file, "is of results format version " + attribute_text(reader->root_attributes(), layout::kFormatVersion) +
-                                           ", newer than this allocsim writes (" +
-                                           std::to_string(layout::kResultsFormatVersion) +
-                                           "); use a newer allocsim or choose another output.file");
+    throw InputError(plan.output_file,
+                     "is of results format version " +
+                         attribute_text(reader->root_attributes(), layout::kFormatVersion) +
+                         ", newer than this allocsim writes (" +
+                         std::to_string(layout::kResultsFormatVersion) +
+                         "); use a newer allocsim or choose another output.file");
   }
   if (restart) return false;
   const std::string difference = finished_file_difference(plan, *reader);
@@ -451,7 +460,8 @@ SweepPlan plan_sweep(const std::string& path,
     std::ostringstream given;
     given << "\n# given on the command line:\n";
     for (const auto& [key, text] : command_line) given << "# --" << key << " " << text << "\n";
-    for (const auto& [key, spec] : overrides.axes) given << "# --sweep." << key << " '" << spec << "'\n";
+    for (const auto& [key, spec] : overrides.axes)
+      given << "# --sweep." << key << " '" << spec << "'\n";
     if (overrides.replicates > 0) given << "# --replicates " << overrides.replicates << "\n";
     plan.experiment_text += given.str();
   }
@@ -485,12 +495,11 @@ void require_sweep_memory(const SweepPlan& plan, int threads) {
   }
   const long in_flight = std::min<long>(threads, static_cast<long>(plan.points.size()));
   const ExperimentValues values = plan.run_values(at);
-  require_memory(largest * static_cast<double>(in_flight),
-                 std::to_string(in_flight) + " run(s) in flight of up to " +
-                     values.text("scenario.agents") + " x " + values.text("scenario.partners") +
-                     " cells",
-                 key_where(values, "scenario.agents"),
-                 "use fewer agents or partners, or fewer --threads");
+  require_memory(
+      largest * static_cast<double>(in_flight),
+      std::to_string(in_flight) + " run(s) in flight of up to " + values.text("scenario.agents") +
+          " x " + values.text("scenario.partners") + " cells",
+      key_where(values, "scenario.agents"), "use fewer agents or partners, or fewer --threads");
 }
 
 std::unique_ptr<RunDistributor> local_distributor(long count) {
@@ -542,7 +551,8 @@ SweepReport run_sweep(const SweepPlan& plan, const SweepRequest& request) {
 
   // A finished file left alone: nothing to do (MPI ranks still take part in
   // the collective steps below, with an empty list).
-  std::vector<long> to_do = report.left_alone ? std::vector<long>{} : runs_to_do(store, report.total);
+  std::vector<long> to_do =
+      report.left_alone ? std::vector<long>{} : runs_to_do(store, report.total);
   if (request.share_to_do) to_do = request.share_to_do(std::move(to_do));
   if (!report.left_alone) report.already_done = report.total - static_cast<long>(to_do.size());
 
@@ -586,8 +596,8 @@ SweepReport run_sweep(const SweepPlan& plan, const SweepRequest& request) {
     for (const auto& failure : report.failures) {
       if (failure.find(": could not be written: ") != std::string::npos) {
         throw WriteError(failure.substr(0, failure.find(": could not be written: ")),
-                         failure.substr(failure.find(": could not be written: ") + 24) +
-                             " (" + std::to_string(store.finished().size()) +
+                         failure.substr(failure.find(": could not be written: ") + 24) + " (" +
+                             std::to_string(store.finished().size()) +
                              " finished runs are kept in " + store.folder() + ")");
       }
     }

@@ -11,9 +11,7 @@ namespace allocsim::plots {
 namespace {
 
 // "<metric>_<field>", e.g. "nodf_null_mean".
-std::string null_key(const std::string& metric, const char* field) {
-  return metric + "_" + field;
-}
+std::string null_key(const std::string& metric, const char* field) { return metric + "_" + field; }
 
 }  // namespace
 
@@ -110,9 +108,9 @@ std::vector<int> quintile_bands(const std::vector<double>& values) {
 }
 
 // Coverage per band of the cases whose group is `group` (all when empty).
-void add_coverage_bands(const std::string& axis, const std::vector<int>& bands, const std::vector<int>& covered,
-                        const std::vector<std::string>& groups, const std::string& group,
-                        EstimatorScoreCard& card) {
+void add_coverage_bands(const std::string& axis, const std::vector<int>& bands,
+                        const std::vector<int>& covered, const std::vector<std::string>& groups,
+                        const std::string& group, EstimatorScoreCard& card) {
   for (int band = 1; band <= 5; ++band) {
     CoverageBand b{group.empty() ? axis : axis + " (" + group + ")", band, kNoValue, 0};
     long hits = 0;
@@ -127,7 +125,8 @@ void add_coverage_bands(const std::string& axis, const std::vector<int>& bands, 
 }
 
 int source_rank(const std::string& source) {
-  static const std::vector<std::string> order = {"model", "price", "gumbel", "queue", "learn", "mixed-noise"};
+  static const std::vector<std::string> order = {"model", "price", "gumbel",
+                                                 "queue", "learn", "mixed-noise"};
   return static_cast<int>(std::find(order.begin(), order.end(), source) - order.begin());
 }
 
@@ -146,8 +145,10 @@ EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records) {
     ScoredEstimate e;
     e.true_epsilon = *truth;
     e.estimate = r.number(layout::kEpsilon).value_or(kNoValue);
-    e.units = r.number(layout::kUnitsColumn).value_or(r.number(layout::kUnitsAfterBurnIn).value_or(kNoValue));
-    e.series = r.text(layout::kSourceColumn).value_or(r.text(layout::kFamilyColumn).value_or("all cases"));
+    e.units = r.number(layout::kUnitsColumn)
+                  .value_or(r.number(layout::kUnitsAfterBurnIn).value_or(kNoValue));
+    e.series =
+        r.text(layout::kSourceColumn).value_or(r.text(layout::kFamilyColumn).value_or("all cases"));
     const double low = r.number(layout::kEpsilonCiLow).value_or(kNoValue);
     const double high = r.number(layout::kEpsilonCiHigh).value_or(kNoValue);
     const bool interval = !std::isnan(e.estimate) && !std::isnan(low) && !std::isnan(high);
@@ -163,14 +164,17 @@ EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records) {
   if (card.cases.empty()) return card;
   // Coverage apart for the cases whose source has the entropic model as its mean and the others.
   const std::vector<std::string> groups =
-      misspecified ? std::vector<std::string>{"entropic model true", "misspecified"} : std::vector<std::string>{""};
+      misspecified ? std::vector<std::string>{"entropic model true", "misspecified"}
+                   : std::vector<std::string>{""};
   for (const auto& group : groups) {
     add_coverage_bands("true epsilon", quintile_bands(truths), covered, specification, group, card);
-    if (units_known) add_coverage_bands("units", quintile_bands(units), covered, specification, group, card);
+    if (units_known)
+      add_coverage_bands("units", quintile_bands(units), covered, specification, group, card);
   }
-  std::stable_sort(card.cases.begin(), card.cases.end(), [](const ScoredEstimate& a, const ScoredEstimate& b) {
-    return source_rank(a.series) < source_rank(b.series);
-  });
+  std::stable_sort(card.cases.begin(), card.cases.end(),
+                   [](const ScoredEstimate& a, const ScoredEstimate& b) {
+                     return source_rank(a.series) < source_rank(b.series);
+                   });
   return card;
 }
 

@@ -1,10 +1,10 @@
 #include "figure_script.hpp"
 
-#include <fstream>
 #include <spawn.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
+#include <fstream>
 
 #include <algorithm>
 #include <cerrno>
@@ -28,8 +28,8 @@ std::string terminal_line(const FigureOptions& options, int width, int height) {
   std::ostringstream out;
   switch (options.format) {
     case ImageFormat::png:
-      out << "set terminal pngcairo size " << width << "," << height
-          << " enhanced font " << font << " background rgb 'white'";
+      out << "set terminal pngcairo size " << width << "," << height << " enhanced font " << font
+          << " background rgb 'white'";
       break;
     case ImageFormat::svg:
       out << "set terminal svg size " << width << "," << height << " enhanced font " << font
@@ -63,8 +63,8 @@ std::string default_gnuplot() {
 
 // Runs `program script`, waits; returns the exit status (-1: not started or killed).
 int run_gnuplot(const std::string& program, const std::string& script) {
-  std::vector<char*> argv = {const_cast<char*>(program.c_str()),
-                             const_cast<char*>(script.c_str()), nullptr};
+  std::vector<char*> argv = {const_cast<char*>(program.c_str()), const_cast<char*>(script.c_str()),
+                             nullptr};
   pid_t pid = 0;
   if (::posix_spawnp(&pid, program.c_str(), nullptr, nullptr, argv.data(), environ) != 0) return -1;
   int status = 0;
@@ -90,10 +90,12 @@ std::string number(double value) {
 std::string markup(const std::string& text) { return "'" + text + "'"; }
 
 std::vector<Point> sorted_finite(std::vector<Point> points) {
-  points.erase(std::remove_if(points.begin(), points.end(),
-                              [](const Point& p) { return !std::isfinite(p.x) || !std::isfinite(p.y); }),
-               points.end());
-  std::stable_sort(points.begin(), points.end(), [](const Point& a, const Point& b) { return a.x < b.x; });
+  points.erase(
+      std::remove_if(points.begin(), points.end(),
+                     [](const Point& p) { return !std::isfinite(p.x) || !std::isfinite(p.y); }),
+      points.end());
+  std::stable_sort(points.begin(), points.end(),
+                   [](const Point& a, const Point& b) { return a.x < b.x; });
   return points;
 }
 
@@ -138,15 +140,18 @@ static bool image_is_complete(const std::string& path, ImageFormat format) {
   in.seekg(size - tail_size);
   in.read(tail.data(), tail_size);
   switch (format) {
-    case ImageFormat::png: return tail.find("IEND") != std::string::npos;
-    case ImageFormat::svg: return tail.find("</svg>") != std::string::npos;
-    case ImageFormat::pdf: return tail.find("%%EOF") != std::string::npos;
+    case ImageFormat::png:
+      return tail.find("IEND") != std::string::npos;
+    case ImageFormat::svg:
+      return tail.find("</svg>") != std::string::npos;
+    case ImageFormat::pdf:
+      return tail.find("%%EOF") != std::string::npos;
   }
   return true;
 }
 
-FigureScript::FigureScript(const std::string& stem, const FigureOptions& options,
-                           int default_width, int default_height)
+FigureScript::FigureScript(const std::string& stem, const FigureOptions& options, int default_width,
+                           int default_height)
     : options_(options),
       image_path_(stem + "." + file_extension(options.format)),
       script_path_(stem + ".gp") {
@@ -165,7 +170,8 @@ FigureScript::FigureScript(const std::string& stem, const FigureOptions& options
   Gnuplot& out = *gp_;
   out << "# allocsim figure " << path_literal(image_path_) << "\n"
       << terminal_line(options_, width, height) << "\n"
-      << "set output " << path_literal(options_.script_only ? image_path_ : image_temporary_) << "\n"
+      << "set output " << path_literal(options_.script_only ? image_path_ : image_temporary_)
+      << "\n"
       << "set encoding utf8\n"
       << kPlotStyle << "\n";
 }
@@ -185,10 +191,13 @@ std::string FigureScript::finish() {
   *gp_ << "unset multiplot\nunset output\n";
   const bool written = static_cast<bool>(*gp_);
   gp_.reset();  // flushes and closes the script
-  if (!written) throw WriteError(script_path_, write_failure_cause(script_path_, "the script is incomplete", errno));
+  if (!written)
+    throw WriteError(script_path_,
+                     write_failure_cause(script_path_, "the script is incomplete", errno));
   if (options_.script_only) {
     if (std::rename(script_temporary_.c_str(), script_path_.c_str()) != 0) {
-      throw InputError(script_path_, std::string("could not be written (") + std::strerror(errno) + ")");
+      throw InputError(script_path_,
+                       std::string("could not be written (") + std::strerror(errno) + ")");
     }
     finished_ = true;
     return script_path_;
@@ -197,18 +206,20 @@ std::string FigureScript::finish() {
       options_.gnuplot_program.empty() ? default_gnuplot() : options_.gnuplot_program;
   const int status = run_gnuplot(program, script_temporary_);
   if (status != 0) {
-    throw InputError(image_path_, status < 0 ? "gnuplot ('" + program + "') could not be run"
-                                             : "gnuplot failed (exit status " +
-                                                   std::to_string(status) +
-                                                   "; its messages are above)");
+    throw InputError(image_path_, status < 0
+                                      ? "gnuplot ('" + program + "') could not be run"
+                                      : "gnuplot failed (exit status " + std::to_string(status) +
+                                            "; its messages are above)");
   }
   if (file_size(image_temporary_) <= 0 || !image_is_complete(image_temporary_, options_.format)) {
     const int error = errno;
     std::remove(image_temporary_.c_str());
-    throw WriteError(image_path_, write_failure_cause(image_path_, "gnuplot wrote no complete image", error));
+    throw WriteError(image_path_,
+                     write_failure_cause(image_path_, "gnuplot wrote no complete image", error));
   }
   if (std::rename(image_temporary_.c_str(), image_path_.c_str()) != 0) {
-    throw InputError(image_path_, std::string("could not be written (") + std::strerror(errno) + ")");
+    throw InputError(image_path_,
+                     std::string("could not be written (") + std::strerror(errno) + ")");
   }
   std::remove(script_temporary_.c_str());
   finished_ = true;

@@ -44,9 +44,12 @@ std::string quote_gnuplot_tic_label(const std::string& text) {
 
 std::string to_string(ImageFormat format) {
   switch (format) {
-    case ImageFormat::png: return "png";
-    case ImageFormat::svg: return "svg";
-    case ImageFormat::pdf: return "pdf";
+    case ImageFormat::png:
+      return "png";
+    case ImageFormat::svg:
+      return "svg";
+    case ImageFormat::pdf:
+      return "pdf";
   }
   return "png";
 }
@@ -62,15 +65,16 @@ std::string file_extension(ImageFormat format) { return to_string(format); }
 
 void FigureOptions::validate() const {
   if (width_pixels < 0 || (width_pixels > 0 && (width_pixels < 200 || width_pixels > 10000))) {
-    throw InputError("width_pixels", "must be 0 (default) or in [200, 10000], not " +
-                                         std::to_string(width_pixels));
+    throw InputError("width_pixels",
+                     "must be 0 (default) or in [200, 10000], not " + std::to_string(width_pixels));
   }
   if (height_pixels < 0 || (height_pixels > 0 && (height_pixels < 200 || height_pixels > 10000))) {
     throw InputError("height_pixels", "must be 0 (default) or in [200, 10000], not " +
                                           std::to_string(height_pixels));
   }
   if (font_size_points < 6 || font_size_points > 40) {
-    throw InputError("font_size_points", "must be in [6, 40], not " + std::to_string(font_size_points));
+    throw InputError("font_size_points",
+                     "must be in [6, 40], not " + std::to_string(font_size_points));
   }
 }
 

@@ -26,7 +26,8 @@ Rows histogram(const std::vector<double>& values, double observed, double& width
     low -= 0.5;
     high += 0.5;
   }
-  const long bins = std::clamp<long>(std::lround(std::sqrt(static_cast<double>(values.size()))), 5, 40);
+  const long bins =
+      std::clamp<long>(std::lround(std::sqrt(static_cast<double>(values.size()))), 5, 40);
   width = (high - low) / static_cast<double>(bins);
   std::vector<double> counts(static_cast<std::size_t>(bins), 0.0);
   for (const double v : values) {
@@ -35,7 +36,8 @@ Rows histogram(const std::vector<double>& values, double observed, double& width
   }
   Rows rows;
   for (long k = 0; k < bins; ++k)
-    rows.push_back({low + (static_cast<double>(k) + 0.5) * width, counts[static_cast<std::size_t>(k)]});
+    rows.push_back(
+        {low + (static_cast<double>(k) + 0.5) * width, counts[static_cast<std::size_t>(k)]});
   return rows;
 }
 
@@ -51,7 +53,8 @@ std::string short_number(double value) {
 std::string draw_null_histograms(const NullHistograms& figure, const std::string& stem,
                                  const FigureOptions& options) {
   if (figure.panels.empty() || figure.panels.size() > 2)
-    throw InputError("null histograms", "need 1 or 2 panels, got " + std::to_string(figure.panels.size()));
+    throw InputError("null histograms",
+                     "need 1 or 2 panels, got " + std::to_string(figure.panels.size()));
   const std::size_t k = figure.panels.size();
   FigureScript script(stem, options, 560 * static_cast<int>(k) + 120, 600);
   Gnuplot& gp = script.gp();
@@ -61,13 +64,16 @@ std::string draw_null_histograms(const NullHistograms& figure, const std::string
      << "set yrange [0:*]\nset bmargin 5\n";
   for (const NullDistribution& panel : figure.panels) {
     const std::vector<double> values = finite(panel.values);
-    if (values.empty()) throw InputError("null histograms", panel.metric + " has no finite null values");
+    if (values.empty())
+      throw InputError("null histograms", panel.metric + " has no finite null values");
     double width = 1;
     const Rows rows = histogram(values, panel.observed, width);
-    gp << "set title " << quote_gnuplot_text(panel.metric + ": observed " + short_number(panel.observed) +
-                                             ", z = " + short_number(panel.z_score))
-       << "\nset xlabel " << quote_gnuplot_text(panel.metric + "   (p upper " + short_number(panel.p_upper) +
-                                                 ", p two-sided " + short_number(panel.p_two_sided) + ")")
+    gp << "set title "
+       << quote_gnuplot_text(panel.metric + ": observed " + short_number(panel.observed) +
+                             ", z = " + short_number(panel.z_score))
+       << "\nset xlabel "
+       << quote_gnuplot_text(panel.metric + "   (p upper " + short_number(panel.p_upper) +
+                             ", p two-sided " + short_number(panel.p_two_sided) + ")")
        << "\nset boxwidth " << number(width * 0.95) << "\n"
        << "set arrow 1 from " << number(panel.observed) << ", graph 0 to " << number(panel.observed)
        << ", graph 1 nohead lw 3 lc rgb '#c0392b' front\n"

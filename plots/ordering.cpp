@@ -23,7 +23,8 @@ Ordering degree_ordering(const Matrix& values) {
   const Matrix filled = (values.array() > 0).cast<double>().matrix();
   Ordering ordering;
   ordering.rows = by_degree(filled.rowwise().sum(), values.rowwise().sum());
-  ordering.columns = by_degree(filled.colwise().sum().transpose(), values.colwise().sum().transpose());
+  ordering.columns =
+      by_degree(filled.colwise().sum().transpose(), values.colwise().sum().transpose());
   return ordering;
 }
 

@@ -44,7 +44,8 @@ struct PlotContext {
 std::string file_name_part(const std::string& text) {
   std::string out;
   for (const char c : text) {
-    out += (std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '-' || c == '.') ? c : '_';
+    out +=
+        (std::isalnum(static_cast<unsigned char>(c)) || c == '_' || c == '-' || c == '.') ? c : '_';
   }
   if (out.empty() || out[0] == '.') out = "run" + out;
   return out;
@@ -61,7 +62,8 @@ std::string short_number(double value) {
 std::string count_text(double value) {
   if (!(std::abs(value) < 1e15) || value != std::round(value)) return short_number(value);
   std::string digits = std::to_string(std::llround(std::abs(value)));
-  for (long at = static_cast<long>(digits.size()) - 3; at > 0; at -= 3) digits.insert(static_cast<std::size_t>(at), ",");
+  for (long at = static_cast<long>(digits.size()) - 3; at > 0; at -= 3)
+    digits.insert(static_cast<std::size_t>(at), ",");
   return (value < 0 ? "-" : "") + digits;
 }
 
@@ -130,16 +132,20 @@ void draw_heatmaps(PlotContext& context, const ResultsReader& reader, const RunR
   if (!(emergent.sum() > 0)) return context.skip(figure, "no units in allocation/total");
   const bool observed = is_observed(run);
   AllocationHeatmaps heatmaps;
-  heatmaps.title = observed ? "observed matrix " + file_name_of(*run.text(layout::kObservedAllocation)) +
-                                  (run.text(layout::kObservedGains) ? " and its couplings" : "")
-                            : "allocations of " + run_caption(run);
-  heatmaps.panels.push_back({observed ? observed_panel_title(run, emergent)
-                                      : "emergent allocation (" + count_text(emergent.sum()) + " units)",
+  heatmaps.title = observed
+                       ? "observed matrix " + file_name_of(*run.text(layout::kObservedAllocation)) +
+                             (run.text(layout::kObservedGains) ? " and its couplings" : "")
+                       : "allocations of " + run_caption(run);
+  heatmaps.panels.push_back({observed
+                                 ? observed_panel_title(run, emergent)
+                                 : "emergent allocation (" + count_text(emergent.sum()) + " units)",
                              emergent});
   const auto epsilon = run.number(layout::kEpsilon);
   std::string missing;
   if (const auto entropic = same_shape(reader, run.name, layout::kEntropicCoupling, emergent)) {
-    heatmaps.panels.push_back({epsilon ? "entropic coupling, ε = " + short_number(*epsilon) : "entropic coupling", *entropic});
+    heatmaps.panels.push_back(
+        {epsilon ? "entropic coupling, ε = " + short_number(*epsilon) : "entropic coupling",
+         *entropic});
   } else {
     missing = layout::kEntropicCoupling;
   }
@@ -149,14 +155,16 @@ void draw_heatmaps(PlotContext& context, const ResultsReader& reader, const RunR
     missing += (missing.empty() ? "" : ", ") + std::string(layout::kExactCoupling);
   }
   if (!missing.empty() && !(observed && !run.text(layout::kObservedGains))) {
-    context.notes << "note: " << run.name << " has no " << missing
-              << "; its heatmaps show what is there (run 'allocsim analyze' to add the couplings)\n";
+    context.notes
+        << "note: " << run.name << " has no " << missing
+        << "; its heatmaps show what is there (run 'allocsim analyze' to add the couplings)\n";
   }
-  heatmaps.ordering = observed ? stored_nested_ordering(reader, run.name)
-                              : stored_ordering(reader, run.name);
+  heatmaps.ordering =
+      observed ? stored_nested_ordering(reader, run.name) : stored_ordering(reader, run.name);
   if (!heatmaps.ordering.rows.empty())
-    heatmaps.ordering_name = observed ? "nested order (number of links)"
-                                      : run.text(layout::kOrderName).value_or("the stored ordering");
+    heatmaps.ordering_name = observed
+                                 ? "nested order (number of links)"
+                                 : run.text(layout::kOrderName).value_or("the stored ordering");
   heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);
   heatmaps.column_labels = reader.read_texts(run.name, layout::kPartnerLabels);
   context.record(draw_allocation_heatmaps(
@@ -171,8 +179,8 @@ void draw_links(PlotContext& context, const ResultsReader& reader, const RunReco
   AllocationHeatmaps heatmaps;
   heatmaps.title = "links of " + file_name_of(*run.text(layout::kObservedAllocation)) + ": " +
                    run.text(layout::kBinarize).value_or("binarised");
-  heatmaps.panels.push_back({count_text(links.sum()) + " links of " + count_text(static_cast<double>(links.size())) +
-                                 " cells",
+  heatmaps.panels.push_back({count_text(links.sum()) + " links of " +
+                                 count_text(static_cast<double>(links.size())) + " cells",
                              links});
   heatmaps.ordering = stored_nested_ordering(reader, run.name);
   heatmaps.ordering_name = "nested order (number of links)";
@@ -180,16 +188,19 @@ void draw_links(PlotContext& context, const ResultsReader& reader, const RunReco
   heatmaps.colour_bar = false;
   heatmaps.row_labels = reader.read_texts(run.name, layout::kAgentLabels);
   heatmaps.column_labels = reader.read_texts(run.name, layout::kPartnerLabels);
-  context.record(draw_allocation_heatmaps(heatmaps, context.stem(file_name_part(run.name) + "-links"),
-                                          context.options));
+  context.record(draw_allocation_heatmaps(
+      heatmaps, context.stem(file_name_part(run.name) + "-links"), context.options));
 }
 
 // NODF (and WNODF) of the run against the null ensemble stored with it.
-void draw_null_distributions(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
+void draw_null_distributions(PlotContext& context, const ResultsReader& reader,
+                             const RunRecord& run) {
   NullHistograms figure;
-  for (const auto& [metric, display] : {std::pair<std::string, std::string>{layout::kNodf, "NODF"},
-                                        std::pair<std::string, std::string>{layout::kWnodf, "WNODF"}}) {
-    const std::string values_path = std::string(layout::kAnalysis) + "/" + metric + layout::kNullValuesSuffix;
+  for (const auto& [metric, display] :
+       {std::pair<std::string, std::string>{layout::kNodf, "NODF"},
+        std::pair<std::string, std::string>{layout::kWnodf, "WNODF"}}) {
+    const std::string values_path =
+        std::string(layout::kAnalysis) + "/" + metric + layout::kNullValuesSuffix;
     const auto observed = run.number(metric);
     if (!reader.has(run.name, values_path) || !observed) continue;
     const Vector values = reader.read_vector(run.name, values_path);
@@ -210,15 +221,17 @@ void draw_null_distributions(PlotContext& context, const ResultsReader& reader, 
                     << "curveball|bicm|fixed-margins --save to draw one\n";
     return;
   }
-  figure.title = (is_observed(run) ? file_name_of(*run.text(layout::kObservedAllocation)) : run.name) +
-                 " against its null ensemble";
+  figure.title =
+      (is_observed(run) ? file_name_of(*run.text(layout::kObservedAllocation)) : run.name) +
+      " against its null ensemble";
   context.record(draw_null_histograms(figure, context.stem(file_name_part(run.name) + "-nulls"),
                                       context.options));
 }
 
 void draw_trajectories(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
   const std::string figure_name = "trajectories of " + run.name;
-  if (!reader.has(run.name, layout::kRoundEnd)) return context.skip(figure_name, "no allocation/round_end");
+  if (!reader.has(run.name, layout::kRoundEnd))
+    return context.skip(figure_name, "no allocation/round_end");
   Trajectories figure;
   figure.title = "trajectories of " + run_caption(run);
   const Vector rounds = reader.read_vector(run.name, layout::kRoundEnd);
@@ -234,29 +247,29 @@ void draw_trajectories(PlotContext& context, const ResultsReader& reader, const 
   const long count = reader.snapshot_count(run.name);
   if (count == rounds.size() && reader.has(run.name, layout::kBudgets)) {
     const TransportProblem scenario = reader.read_scenario(run.name);
-    marginal_errors(scenario.budgets, scenario.capacities, count,
-                           [&](long k) { return reader.read_snapshot(run.name, k); }, figure);
+    marginal_errors(
+        scenario.budgets, scenario.capacities, count,
+        [&](long k) { return reader.read_snapshot(run.name, k); }, figure);
   }
   if (figure.prices.empty() && figure.column_error.empty())
     return context.skip(figure_name, "neither prices nor allocation snapshots");
-  context.record(draw_trajectories(
-      figure, context.stem(file_name_part(run.name) + "-trajectories"), context.options));
+  context.record(draw_trajectories(figure, context.stem(file_name_part(run.name) + "-trajectories"),
+                                   context.options));
 }
 
 void draw_metric(PlotContext& context, const std::vector<RunRecord>& runs,
                  const std::string& metric, const std::string& display) {
-  const MetricAgainstTemperature figure =
-      metric_against_temperature(runs, metric, display);
+  const MetricAgainstTemperature figure = metric_against_temperature(runs, metric, display);
   if (distinct_x(figure.runs) < 2) {
     return context.skip(display + " against temperature",
                         "needs runs with a " + metric + " value at two or more temperatures");
   }
   if (figure.null_band.empty()) {
-    context.notes << "note: no null model values for " << metric << "; drawing "
-              << display << " against temperature without a null band\n";
+    context.notes << "note: no null model values for " << metric << "; drawing " << display
+                  << " against temperature without a null band\n";
   }
-  context.record(draw_metric_against_temperature(
-      figure, context.stem(metric + "-vs-temperature"), context.options));
+  context.record(draw_metric_against_temperature(figure, context.stem(metric + "-vs-temperature"),
+                                                 context.options));
 }
 
 void draw_recovery(PlotContext& context, const std::vector<RunRecord>& runs) {
@@ -273,30 +286,31 @@ void draw_recovery(PlotContext& context, const std::vector<RunRecord>& runs) {
 
 void draw_distances(PlotContext& context, const std::vector<RunRecord>& runs) {
   for (const auto& [name, display] : kDistances) {
-    const DistanceAgainstTemperature figure =
-        distance_against_temperature(runs, name, display);
+    const DistanceAgainstTemperature figure = distance_against_temperature(runs, name, display);
     std::vector<Point> both = figure.to_entropic;
     both.insert(both.end(), figure.to_exact.begin(), figure.to_exact.end());
     if (distinct_x(both) < 2) continue;
     return context.record(draw_distance_against_temperature(
         figure, context.stem("distance-vs-temperature"), context.options));
   }
-  context.skip("distance against temperature",
-               "needs runs with a distance to the entropic or exact coupling (total_variation, hellinger "
-               "or kl_divergence) at two or more temperatures");
+  context.skip(
+      "distance against temperature",
+      "needs runs with a distance to the entropic or exact coupling (total_variation, hellinger "
+      "or kl_divergence) at two or more temperatures");
 }
 
 void draw_scores(PlotContext& context, const std::vector<RunRecord>& records) {
   const EstimatorScoreCard figure = estimator_score_card(records);
-  const bool answered = std::any_of(figure.cases.begin(), figure.cases.end(), [](const ScoredEstimate& e) {
-    return e.estimate > 0 && std::isfinite(e.estimate);
-  });
+  const bool answered = std::any_of(
+      figure.cases.begin(), figure.cases.end(),
+      [](const ScoredEstimate& e) { return e.estimate > 0 && std::isfinite(e.estimate); });
   if (!answered) {
     return context.skip("estimator scores",
                         "no benchmark cases (rows with true_epsilon and a positive finite epsilon; "
                         "see allocsim score --out scores.h5)");
   }
-  context.record(draw_estimator_score_card(figure, context.stem("estimator-scores"), context.options));
+  context.record(
+      draw_estimator_score_card(figure, context.stem("estimator-scores"), context.options));
 }
 
 // The run with the smallest run_index (else the first by name), or `wanted`.
@@ -310,7 +324,8 @@ const RunRecord& chosen_run(const std::vector<RunRecord>& runs, const std::strin
     return *it;
   }
   return *std::min_element(runs.begin(), runs.end(), [](const RunRecord& a, const RunRecord& b) {
-    return a.number(layout::kRunIndex).value_or(1e300) < b.number(layout::kRunIndex).value_or(1e300);
+    return a.number(layout::kRunIndex).value_or(1e300) <
+           b.number(layout::kRunIndex).value_or(1e300);
   });
 }
 
@@ -320,7 +335,8 @@ std::vector<std::string> draw_results_figures(const ResultsReader& reader,
                                               const ResultsFiguresRequest& request,
                                               std::ostream& notes) {
   const std::vector<RunRecord> runs = read_run_records(reader);
-  const std::vector<RunRecord> rows = runs.empty() ? read_summary_records(reader) : std::vector<RunRecord>{};
+  const std::vector<RunRecord> rows =
+      runs.empty() ? read_summary_records(reader) : std::vector<RunRecord>{};
   const bool scores_only = runs.empty() && !estimator_score_card(rows).cases.empty();
   if (runs.empty() && !scores_only) throw InputError(reader.path(), "holds no runs");
   if (scores_only && !request.run.empty())

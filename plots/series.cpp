@@ -52,7 +52,9 @@ bool has_replicates(const std::vector<Point>& sorted) {
 Rows band_rows(const std::vector<NullBandPoint>& band) {
   std::map<double, std::vector<double>> sums;  // x -> mean, low, high, count
   for (const auto& b : band) {
-    if (!std::isfinite(b.x) || !std::isfinite(b.mean) || !std::isfinite(b.low) || !std::isfinite(b.high)) continue;
+    if (!std::isfinite(b.x) || !std::isfinite(b.mean) || !std::isfinite(b.low) ||
+        !std::isfinite(b.high))
+      continue;
     auto& s = sums[b.x];
     if (s.empty()) s.assign(4, 0.0);
     s[0] += b.mean, s[1] += b.low, s[2] += b.high, s[3] += 1;
@@ -65,19 +67,21 @@ Rows band_rows(const std::vector<NullBandPoint>& band) {
 // One series: points (and a line through the means at each x when there
 // are replicates, else the points joined).
 struct SeriesPlot {
-  std::string elements;   // the plot elements, comma-separated
-  std::vector<Rows> data; // one block per element
+  std::string elements;    // the plot elements, comma-separated
+  std::vector<Rows> data;  // one block per element
 };
 
-void add_series(SeriesPlot& plot, const std::vector<Point>& sorted, int style, const std::string& title) {
+void add_series(SeriesPlot& plot, const std::vector<Point>& sorted, int style,
+                const std::string& title) {
   const std::string sep = plot.elements.empty() ? "" : ", ";
   if (has_replicates(sorted)) {
-    plot.elements += sep + "'-' using 1:2 with points ls " + std::to_string(style) + " title " + title +
-                     ", '-' using 1:2 with lines ls " + std::to_string(style) + " notitle";
+    plot.elements += sep + "'-' using 1:2 with points ls " + std::to_string(style) + " title " +
+                     title + ", '-' using 1:2 with lines ls " + std::to_string(style) + " notitle";
     plot.data.push_back(xy(sorted));
     plot.data.push_back(means_by_x(sorted));
   } else {
-    plot.elements += sep + "'-' using 1:2 with linespoints ls " + std::to_string(style) + " title " + title;
+    plot.elements +=
+        sep + "'-' using 1:2 with linespoints ls " + std::to_string(style) + " title " + title;
     plot.data.push_back(xy(sorted));
   }
 }
@@ -92,10 +96,12 @@ void send(Gnuplot& gp, const SeriesPlot& plot) {
 std::string draw_metric_against_temperature(const MetricAgainstTemperature& figure,
                                             const std::string& stem, const FigureOptions& options) {
   const std::vector<Point> runs = sorted_finite(figure.runs);
-  if (runs.empty()) throw InputError(figure.metric_name + " against temperature", "no finite points to draw");
+  if (runs.empty())
+    throw InputError(figure.metric_name + " against temperature", "no finite points to draw");
   FigureScript script(stem, options, 1000, 700);
   Gnuplot& gp = script.gp();
-  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font() << "'\n"
+  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font()
+     << "'\n"
      << "set ylabel " << quote_gnuplot_text(figure.metric_name) << "\n";
   temperature_axis(gp, runs);
   SeriesPlot plot;
@@ -103,7 +109,8 @@ std::string draw_metric_against_temperature(const MetricAgainstTemperature& figu
   if (!band.empty()) {
     plot.elements = "'-' using 1:3:4 with filledcurves ls 21 fs solid 0.6 noborder title " +
                     quote_gnuplot_text(figure.null_name + ": 95% band") +
-                    ", '-' using 1:2 with lines ls 20 title " + quote_gnuplot_text(figure.null_name + ": mean");
+                    ", '-' using 1:2 with lines ls 20 title " +
+                    quote_gnuplot_text(figure.null_name + ": mean");
     plot.data.push_back(band);
     plot.data.push_back(band);
   }
@@ -117,11 +124,15 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
   std::vector<Point> shown;
   long boundary = 0;
   for (const auto& p : sorted_finite(figure.runs)) {
-    if (p.x > 0 && p.y > 0) shown.push_back(p);
-    else ++boundary;
+    if (p.x > 0 && p.y > 0)
+      shown.push_back(p);
+    else
+      ++boundary;
   }
-  boundary += static_cast<long>(figure.runs.size()) - static_cast<long>(sorted_finite(figure.runs).size());
-  if (shown.empty()) throw InputError("temperature recovery", "no positive finite estimate to draw");
+  boundary +=
+      static_cast<long>(figure.runs.size()) - static_cast<long>(sorted_finite(figure.runs).size());
+  if (shown.empty())
+    throw InputError("temperature recovery", "no positive finite estimate to draw");
   double low = shown.front().x, high = shown.front().x;
   for (const auto& p : shown) {
     low = std::min({low, p.x, p.y});
@@ -139,18 +150,22 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
   }
   FigureScript script(stem, options, 900, 800);
   Gnuplot& gp = script.gp();
-  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font() << "'\n"
+  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font()
+     << "'\n"
      << "set xlabel " << markup("true choice temperature {/:Italic T}  (gain units)") << "\n"
-     << "set ylabel " << markup("estimated transport temperature {/Symbol e}  (gain units)") << "\n"
+     << "set ylabel " << markup("estimated transport temperature {/Symbol e}  (gain units)")
+     << "\n"
      // log axes need a decade to show a labelled tick; narrower ranges stay linear
-     << (high >= 10 * low ? "set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n" : "")
+     << (high >= 10 * low ? "set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n"
+                          : "")
      << "set xrange [" << number(low) << ":" << number(high) << "]\n"
      << "set yrange [" << number(low) << ":" << number(high) << "]\n"
      << "set size ratio -1\nset key top left\n";
   if (boundary > 0) {
-    gp << "set label " << quote_gnuplot_text(std::to_string(boundary) +
-                                             (boundary == 1 ? " boundary estimate" : " boundary estimates") +
-                                             " (0 or infinite) not shown")
+    gp << "set label "
+       << quote_gnuplot_text(std::to_string(boundary) +
+                             (boundary == 1 ? " boundary estimate" : " boundary estimates") +
+                             " (0 or infinite) not shown")
        << " at graph 0.98, graph 0.04 right\n";
   }
   gp << "plot x with lines ls 20 title " << markup("identity  {/Symbol e} = {/:Italic T}")
@@ -161,22 +176,27 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
 }
 
 std::string draw_distance_against_temperature(const DistanceAgainstTemperature& figure,
-                                              const std::string& stem, const FigureOptions& options) {
+                                              const std::string& stem,
+                                              const FigureOptions& options) {
   const std::vector<Point> entropic = sorted_finite(figure.to_entropic);
   const std::vector<Point> exact = sorted_finite(figure.to_exact);
-  if (entropic.empty() && exact.empty()) throw InputError("distance against temperature", "no finite points to draw");
+  if (entropic.empty() && exact.empty())
+    throw InputError("distance against temperature", "no finite points to draw");
   std::vector<double> y;
   std::vector<Point> all = entropic;
   all.insert(all.end(), exact.begin(), exact.end());
   for (const auto& p : all) y.push_back(p.y);
   FigureScript script(stem, options, 1000, 700);
   Gnuplot& gp = script.gp();
-  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font() << "'\n"
-     << "set ylabel " << quote_gnuplot_text(figure.distance_name + " from the emergent allocation P") << "\n";
+  gp << "set title " << quote_gnuplot_text(figure.title) << " font '" << script.title_font()
+     << "'\n"
+     << "set ylabel "
+     << quote_gnuplot_text(figure.distance_name + " from the emergent allocation P") << "\n";
   if (wants_log_axis(y, 10)) gp << "set logscale y\nset format y '10^{%L}'\n";
   temperature_axis(gp, all);
   SeriesPlot plot;
-  if (!entropic.empty()) add_series(plot, entropic, 1, markup("to the entropic coupling at the estimated {/Symbol e}"));
+  if (!entropic.empty())
+    add_series(plot, entropic, 1, markup("to the entropic coupling at the estimated {/Symbol e}"));
   if (!exact.empty()) add_series(plot, exact, 2, markup("to the exact (optimal) coupling"));
   send(gp, plot);
   return script.finish();

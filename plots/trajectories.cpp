@@ -16,7 +16,8 @@ constexpr double kExactError = 1e-12;
 using Rows = std::vector<std::vector<double>>;
 
 // (round, value) rows; values that are not positive are left out when `positive_only`.
-Rows series_rows(const std::vector<double>& rounds, const std::vector<double>& values, bool positive_only) {
+Rows series_rows(const std::vector<double>& rounds, const std::vector<double>& values,
+                 bool positive_only) {
   Rows rows;
   for (std::size_t k = 0; k < rounds.size() && k < values.size(); ++k) {
     if (!std::isfinite(values[k]) || (positive_only && !(values[k] > kExactError))) continue;
@@ -28,10 +29,12 @@ Rows series_rows(const std::vector<double>& rounds, const std::vector<double>& v
 void price_panel(Gnuplot& gp, const Trajectories& figure) {
   const std::size_t partners = figure.prices.size();
   const bool named = partners <= kMaxNamedPartners && figure.partner_labels.size() == partners;
-  gp << "set title " << quote_gnuplot_text("prices, one line per partner (" + std::to_string(partners) + ")") << "\n"
+  gp << "set title "
+     << quote_gnuplot_text("prices, one line per partner (" + std::to_string(partners) + ")")
+     << "\n"
      << "set ylabel " << markup("price {/Symbol l}_j  (gain units)") << "\n"
-     << (named ? "set key outside right top vertical\n" : "unset key\n")
-     << "set rmargin " << (named ? "-1" : "4") << "\nplot ";
+     << (named ? "set key outside right top vertical\n" : "unset key\n") << "set rmargin "
+     << (named ? "-1" : "4") << "\nplot ";
   for (std::size_t j = 0; j < partners; ++j) {
     gp << (j ? ", " : "") << "'-' using 1:2 with lines ls " << (j % 8 + 1) << " lw 1.2 "
        << (named ? "title " + quote_gnuplot_text(figure.partner_labels[j]) : "notitle");
@@ -59,7 +62,8 @@ void error_series(Gnuplot& gp, std::string& sep, const std::vector<double>& give
   sep = ", ";
 }
 
-void error_panel(Gnuplot& gp, const Trajectories& figure, const Rows& rows_error, const Rows& columns_error) {
+void error_panel(Gnuplot& gp, const Trajectories& figure, const Rows& rows_error,
+                 const Rows& columns_error) {
   gp << "set title 'marginal errors of each snapshot window'\n"
      << "set ylabel " << markup("L1 error (shares)") << "\n"
      << "set logscale y\nset format y '10^{%L}'\nset key inside top right\nset rmargin 4\n"
@@ -80,19 +84,21 @@ std::string draw_trajectories(const Trajectories& figure, const std::string& ste
   for (const auto& prices : figure.prices) {
     if (prices.size() != figure.rounds.size()) {
       throw InputError("trajectories", "a price series has " + std::to_string(prices.size()) +
-                                           " values for " + std::to_string(figure.rounds.size()) + " rounds");
+                                           " values for " + std::to_string(figure.rounds.size()) +
+                                           " rounds");
     }
   }
   const Rows rows_error = series_rows(figure.rounds, figure.row_error, true);
   const Rows columns_error = series_rows(figure.rounds, figure.column_error, true);
   const bool errors = !rows_error.empty() || !columns_error.empty();
-  if (figure.prices.empty() && !errors) throw InputError("trajectories", "neither prices nor marginal errors to draw");
+  if (figure.prices.empty() && !errors)
+    throw InputError("trajectories", "neither prices nor marginal errors to draw");
   const int panels = (figure.prices.empty() ? 0 : 1) + (errors ? 1 : 0);
 
   FigureScript script(stem, options, 1000, panels == 2 ? 800 : 600);
   Gnuplot& gp = script.gp();
-  gp << "set multiplot layout " << panels << ",1 title " << quote_gnuplot_text(figure.title) << " font '"
-     << script.title_font() << "'\n"
+  gp << "set multiplot layout " << panels << ",1 title " << quote_gnuplot_text(figure.title)
+     << " font '" << script.title_font() << "'\n"
      << "set xlabel " << markup("round {/:Italic t}") << "\n"
      << "set lmargin 12\n";
   if (!figure.prices.empty()) price_panel(gp, figure);

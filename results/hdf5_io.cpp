@@ -67,7 +67,8 @@ void set_integer_attribute(H5::H5Object& target, const std::string& name, long l
 }
 
 void write_matrix(H5::Group& group, const std::string& name, const Matrix& values) {
-  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()), static_cast<hsize_t>(values.cols())};
+  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()),
+                           static_cast<hsize_t>(values.cols())};
   const hsize_t chunk[2] = {rows_per_chunk(dims[0], dims[1]), std::max<hsize_t>(1, dims[1])};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::IEEE_F64LE, H5::DataSpace(2, dims),
                                        compressed(2, chunk));
@@ -83,9 +84,11 @@ void write_vector(H5::Group& group, const std::string& name, const Vector& value
 }
 
 void write_access(H5::Group& group, const std::string& name, const AccessMask& values) {
-  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()), static_cast<hsize_t>(values.cols())};
-  const hsize_t chunk[2] = {std::max<hsize_t>(1, std::min<hsize_t>(dims[0], 1048576 / std::max<hsize_t>(1, dims[1]))),
-                            std::max<hsize_t>(1, dims[1])};
+  const hsize_t dims[2] = {static_cast<hsize_t>(values.rows()),
+                           static_cast<hsize_t>(values.cols())};
+  const hsize_t chunk[2] = {
+      std::max<hsize_t>(1, std::min<hsize_t>(dims[0], 1048576 / std::max<hsize_t>(1, dims[1]))),
+      std::max<hsize_t>(1, dims[1])};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::STD_U8LE, H5::DataSpace(2, dims),
                                        compressed(2, chunk));
   ds.write(values.data(), H5::PredType::NATIVE_UINT8);
@@ -98,7 +101,8 @@ void write_integers(H5::Group& group, const std::string& name,
   if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_LLONG);
 }
 
-void write_texts(H5::Group& group, const std::string& name, const std::vector<std::string>& values) {
+void write_texts(H5::Group& group, const std::string& name,
+                 const std::vector<std::string>& values) {
   const hsize_t dims[1] = {values.size()};
   const H5::StrType type = text_type();
   H5::DataSet ds = group.createDataSet(name, type, H5::DataSpace(1, dims));

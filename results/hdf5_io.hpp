@@ -22,7 +22,8 @@ void set_integer_attribute(H5::H5Object& target, const std::string& name, long l
 void write_matrix(H5::Group& group, const std::string& name, const Matrix& values);
 void write_vector(H5::Group& group, const std::string& name, const Vector& values);
 void write_access(H5::Group& group, const std::string& name, const AccessMask& values);
-void write_integers(H5::Group& group, const std::string& name, const std::vector<long long>& values);
+void write_integers(H5::Group& group, const std::string& name,
+                    const std::vector<long long>& values);
 void write_texts(H5::Group& group, const std::string& name, const std::vector<std::string>& values);
 
 // A 1-D dataset of variable-length texts.

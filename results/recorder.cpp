@@ -43,7 +43,7 @@ AllocationRecorder RunWriter::record_allocation(long agents, long partners) {
   return write_guarded(group_->path, [&]() -> AllocationRecorder {
     auto state = std::make_unique<AllocationRecorder::State>();
     state->run_group = group_->group;
-  state->path = group_->path;
+    state->path = group_->path;
     state->allocation = group_->group.createGroup(layout::kAllocation);
     state->agents = agents;
     state->partners = partners;
@@ -77,7 +77,8 @@ void AllocationRecorder::add_snapshot(const Matrix& counts, long round_end, cons
         const hsize_t price_chunk[2] = {
             std::max<hsize_t>(1, std::min<hsize_t>(64, 131072 / std::max<long>(1, s.partners))),
             static_cast<hsize_t>(s.partners)};
-        s.prices = extendable(s.run_group, layout::kPrices, H5::PredType::IEEE_F64LE, 2, price_chunk);
+        s.prices =
+            extendable(s.run_group, layout::kPrices, H5::PredType::IEEE_F64LE, 2, price_chunk);
         s.has_prices = true;
       }
       append(s.prices, 2, s.count, price_shape, prices->data(), H5::PredType::NATIVE_DOUBLE);

@@ -20,7 +20,8 @@ Comparison unknown_comparison() {
 }
 
 void write_comparison(H5::Group& group, const std::string& prefix, const Comparison& c) {
-  for (const auto& [name, value] : named_values(c)) set_number_attribute(group, prefix + name, value);
+  for (const auto& [name, value] : named_values(c))
+    set_number_attribute(group, prefix + name, value);
 }
 
 // "<metric>_<field>", e.g. "nodf_null_mean".
@@ -34,7 +35,8 @@ void write_null(H5::Group& group, const std::string& metric, const NullCompariso
   set_number_attribute(group, prefix + layout::kPTwoSided, c.p_two_sided);
   set_number_attribute(group, prefix + layout::kNullSamples, static_cast<double>(c.samples));
   Vector values(static_cast<Eigen::Index>(c.null_values.size()));
-  for (std::size_t k = 0; k < c.null_values.size(); ++k) values(static_cast<Eigen::Index>(k)) = c.null_values[k];
+  for (std::size_t k = 0; k < c.null_values.size(); ++k)
+    values(static_cast<Eigen::Index>(k)) = c.null_values[k];
   write_vector(group, metric + layout::kNullValuesSuffix, values);
 }
 
@@ -49,18 +51,21 @@ std::vector<long long> input_order(const Ordering& order, const std::vector<Eige
 
 AccessMask links_in_input_shape(const AllocationReport& r) {
   const ObservedAllocation& o = r.observed;
-  AccessMask links = AccessMask::Zero(static_cast<Eigen::Index>(o.kept_rows.size() + o.dropped_rows.size()),
-                                      static_cast<Eigen::Index>(o.kept_columns.size() + o.dropped_columns.size()));
+  AccessMask links =
+      AccessMask::Zero(static_cast<Eigen::Index>(o.kept_rows.size() + o.dropped_rows.size()),
+                       static_cast<Eigen::Index>(o.kept_columns.size() + o.dropped_columns.size()));
   for (std::size_t a = 0; a < o.kept_rows.size(); ++a)
     for (std::size_t b = 0; b < o.kept_columns.size(); ++b)
-      links(o.kept_rows[a], o.kept_columns[b]) = r.links(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
+      links(o.kept_rows[a], o.kept_columns[b]) =
+          r.links(static_cast<Eigen::Index>(a), static_cast<Eigen::Index>(b));
   return links;
 }
 
 void write_reading(H5::Group& group, const AllocationReport& r) {
   set_text_attribute(group, layout::kValueReading, r.observed.counts ? "counts" : "shares");
   set_number_attribute(group, layout::kValueUnits, r.observed.units);
-  set_integer_attribute(group, layout::kAnalysedAgents, static_cast<long long>(r.observed.kept_rows.size()));
+  set_integer_attribute(group, layout::kAnalysedAgents,
+                        static_cast<long long>(r.observed.kept_rows.size()));
   set_integer_attribute(group, layout::kAnalysedPartners,
                         static_cast<long long>(r.observed.kept_columns.size()));
   const WeightConcentration& c = r.concentration;
@@ -95,11 +100,12 @@ void write_structure(H5::Group& group, const AllocationReport& r) {
   write_integers(group, leaf_name(layout::kColumnOrder),
                  as_integers(r.structure.display_order.columns));
   set_text_attribute(group, layout::kOrderName, "correspondence analysis");
-  write_integers(group, leaf_name(layout::kNestedRowOrder),
-                 input_order(r.structure.nested_rows, r.observed.kept_rows, r.observed.dropped_rows));
-  write_integers(group, leaf_name(layout::kNestedColumnOrder),
-                 input_order(r.structure.nested_columns, r.observed.kept_columns,
-                             r.observed.dropped_columns));
+  write_integers(
+      group, leaf_name(layout::kNestedRowOrder),
+      input_order(r.structure.nested_rows, r.observed.kept_rows, r.observed.dropped_rows));
+  write_integers(
+      group, leaf_name(layout::kNestedColumnOrder),
+      input_order(r.structure.nested_columns, r.observed.kept_columns, r.observed.dropped_columns));
   if (r.structure.nodf_null) write_null(group, layout::kNodf, *r.structure.nodf_null);
   if (r.structure.wnodf_null) write_null(group, layout::kWnodf, *r.structure.wnodf_null);
 }
@@ -119,22 +125,23 @@ void RunWriter::write_report(const AllocationReport& r) {
     clear_analysis();
     H5::Group group = group_->group.openGroup(layout::kAnalysis);
     write_temperature(group, r.temperature);
-    write_comparison(group, layout::kExactPrefix, r.exact.optimal() ? r.versus_exact : unknown_comparison());
+    write_comparison(group, layout::kExactPrefix,
+                     r.exact.optimal() ? r.versus_exact : unknown_comparison());
     if (r.has_entropic) write_comparison(group, layout::kEntropicPrefix, r.versus_entropic);
     write_structure(group, r);
     write_reading(group, r);
     write_access(group, leaf_name(layout::kLinks), links_in_input_shape(r));
     const auto rows =
         static_cast<Eigen::Index>(r.observed.kept_rows.size() + r.observed.dropped_rows.size());
-    const auto cols =
-        static_cast<Eigen::Index>(r.observed.kept_columns.size() + r.observed.dropped_columns.size());
+    const auto cols = static_cast<Eigen::Index>(r.observed.kept_columns.size() +
+                                                r.observed.dropped_columns.size());
     if (r.exact.optimal()) {
       allocsim::write_matrix(group, leaf_name(layout::kExactCoupling),
-                   expand_to_input(r.exact.coupling, r.observed, rows, cols));
+                             expand_to_input(r.exact.coupling, r.observed, rows, cols));
     }
     if (r.has_entropic) {
       allocsim::write_matrix(group, leaf_name(layout::kEntropicCoupling),
-                   expand_to_input(r.temperature.coupling, r.observed, rows, cols));
+                             expand_to_input(r.temperature.coupling, r.observed, rows, cols));
     }
   });
 }

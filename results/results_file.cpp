@@ -79,19 +79,16 @@ void silence_hdf5_diagnostics() { H5::Exception::dontPrint(); }
 RunWriter::RunWriter(std::shared_ptr<Group> group) : group_(std::move(group)) {}
 
 void RunWriter::set_text(const std::string& name, const std::string& value) {
-  return write_guarded(group_->path, [&]() -> void {
-    set_text_attribute(group_->group, name, value);
-  });
+  return write_guarded(group_->path,
+                       [&]() -> void { set_text_attribute(group_->group, name, value); });
 }
 void RunWriter::set_number(const std::string& name, double value) {
-  return write_guarded(group_->path, [&]() -> void {
-    set_number_attribute(group_->group, name, value);
-  });
+  return write_guarded(group_->path,
+                       [&]() -> void { set_number_attribute(group_->group, name, value); });
 }
 void RunWriter::set_integer(const std::string& name, long long value) {
-  return write_guarded(group_->path, [&]() -> void {
-    set_integer_attribute(group_->group, name, value);
-  });
+  return write_guarded(group_->path,
+                       [&]() -> void { set_integer_attribute(group_->group, name, value); });
 }
 
 void RunWriter::write_matrix(const std::string& path, const Matrix& values) {
@@ -132,7 +129,9 @@ struct ResultsFile::File {
 
 ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
                          const std::string& tool_version)
-    : path_(std::move(path)), temporary_(temporary_name_for(path_)), file_(std::make_unique<File>()) {
+    : path_(std::move(path)),
+      temporary_(temporary_name_for(path_)),
+      file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   try {
     file_->file = H5::H5File(temporary_, H5F_ACC_TRUNC);
@@ -164,8 +163,8 @@ RunWriter ResultsFile::create_run(const std::string& name) {
 
 RunWriter ResultsFile::run(const std::string& name) {
   return write_guarded(path_, [&]() -> RunWriter {
-    return RunWriter(
-        std::make_shared<RunWriter::Group>(RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
+    return RunWriter(std::make_shared<RunWriter::Group>(
+        RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
   });
 }
 
@@ -189,8 +188,9 @@ void ResultsFile::write_summary(const SummaryTable& table) {
     H5::Group summary = file_->file.createGroup(layout::kSummary);
     for (const auto& [name, column] : table.texts) write_texts(summary, name, column);
     for (const auto& [name, column] : table.numbers) {
-      write_vector(summary, name,
-                   Eigen::Map<const Vector>(column.data(), static_cast<Eigen::Index>(column.size())));
+      write_vector(
+          summary, name,
+          Eigen::Map<const Vector>(column.data(), static_cast<Eigen::Index>(column.size())));
     }
   });
 }
@@ -207,7 +207,9 @@ struct ResultsUpdate::File {
 };
 
 ResultsUpdate::ResultsUpdate(std::string path)
-    : path_(std::move(path)), temporary_(temporary_name_for(path_)), file_(std::make_unique<File>()) {
+    : path_(std::move(path)),
+      temporary_(temporary_name_for(path_)),
+      file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   std::error_code error;
   std::filesystem::copy_file(path_, temporary_, std::filesystem::copy_options::overwrite_existing,
@@ -232,8 +234,8 @@ ResultsUpdate::~ResultsUpdate() {
 
 RunWriter ResultsUpdate::run(const std::string& name) {
   return write_guarded(path_, [&]() -> RunWriter {
-    return RunWriter(
-        std::make_shared<RunWriter::Group>(RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
+    return RunWriter(std::make_shared<RunWriter::Group>(
+        RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
   });
 }
 

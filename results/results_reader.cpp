@@ -121,7 +121,8 @@ std::string attribute_text(const Attributes& attributes, const std::string& name
   return "";
 }
 
-ResultsReader::ResultsReader(const std::string& path) : path_(path), file_(std::make_unique<File>()) {
+ResultsReader::ResultsReader(const std::string& path)
+    : path_(path), file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   if (!std::filesystem::is_regular_file(path)) {
     throw InputError(path, "cannot be read (does the file exist?)");
@@ -132,8 +133,9 @@ ResultsReader::ResultsReader(const std::string& path) : path_(path), file_(std::
   } catch (const H5::Exception&) {
   }
   if (!hdf5) {
-    throw InputError(path, "is not an HDF5 file (or cannot be read); give a results file "
-                           "written by allocsim simulate or allocsim run");
+    throw InputError(path,
+                     "is not an HDF5 file (or cannot be read); give a results file "
+                     "written by allocsim simulate or allocsim run");
   }
   try {
     file_->file = H5::H5File(path, H5F_ACC_RDONLY);
@@ -148,10 +150,10 @@ ResultsReader::ResultsReader(const std::string& path) : path_(path), file_(std::
   }
   const auto version = attribute_number(root, layout::kFormatVersion);
   if (version && *version > static_cast<double>(layout::kResultsFormatVersion)) {
-    throw InputError(path, "is of results format version " + attribute_text(root, layout::kFormatVersion) +
-                               ", newer than this allocsim reads (" +
-                               std::to_string(layout::kResultsFormatVersion) +
-                               "); use a newer allocsim");
+    throw InputError(
+        path, "is of results format version " + attribute_text(root, layout::kFormatVersion) +
+                  ", newer than this allocsim reads (" +
+                  std::to_string(layout::kResultsFormatVersion) + "); use a newer allocsim");
   }
 }
 
@@ -186,8 +188,7 @@ Attributes ResultsReader::run_attributes(const std::string& run) const {
   });
 }
 
-Attributes ResultsReader::group_attributes(const std::string& run,
-                                           const std::string& path) const {
+Attributes ResultsReader::group_attributes(const std::string& run, const std::string& path) const {
   if (!has(run, path)) return {};
   return read_attributes(file_->file.openGroup(run_path(run) + "/" + path));
 }
@@ -253,7 +254,8 @@ Vector ResultsReader::read_vector(const std::string& run, const std::string& pat
 long ResultsReader::snapshot_count(const std::string& run) const {
   return read_guarded(path_, [&]() -> long {
     if (!has(run, layout::kSnapshots)) return 0;
-    return static_cast<long>(shape_of(open_dataset(*this, file_->file, run, layout::kSnapshots))[0]);
+    return static_cast<long>(
+        shape_of(open_dataset(*this, file_->file, run, layout::kSnapshots))[0]);
   });
 }
 
@@ -293,7 +295,7 @@ TransportProblem ResultsReader::read_scenario(const std::string& run) const {
 }
 
 std::vector<std::string> ResultsReader::read_texts(const std::string& run,
-                                                  const std::string& path) const {
+                                                   const std::string& path) const {
   if (!has(run, path)) return {};
   const H5::DataSet dataset = open_dataset(*this, file_->file, run, path);
   if (dataset.getDataType().getClass() != H5T_STRING || shape_of(dataset).size() != 1) {
@@ -328,17 +330,18 @@ std::vector<std::pair<std::string, std::vector<double>>> ResultsReader::summary_
 }
 
 std::vector<std::pair<std::string, std::vector<std::string>>> ResultsReader::summary_texts() const {
-  return read_guarded(path_, [&]() -> std::vector<std::pair<std::string, std::vector<std::string>>> {
-    std::vector<std::pair<std::string, std::vector<std::string>>> columns;
-    if (!file_->file.nameExists(layout::kSummary)) return columns;
-    const H5::Group summary = file_->file.openGroup(layout::kSummary);
-    for (const auto& name : member_names(summary)) {
-      const H5::DataSet dataset = summary.openDataSet(name);
-      if (dataset.getDataType().getClass() != H5T_STRING) continue;
-      columns.emplace_back(name, read_text_dataset(dataset));
-    }
-    return columns;
-  });
+  return read_guarded(path_,
+                      [&]() -> std::vector<std::pair<std::string, std::vector<std::string>>> {
+                        std::vector<std::pair<std::string, std::vector<std::string>>> columns;
+                        if (!file_->file.nameExists(layout::kSummary)) return columns;
+                        const H5::Group summary = file_->file.openGroup(layout::kSummary);
+                        for (const auto& name : member_names(summary)) {
+                          const H5::DataSet dataset = summary.openDataSet(name);
+                          if (dataset.getDataType().getClass() != H5T_STRING) continue;
+                          columns.emplace_back(name, read_text_dataset(dataset));
+                        }
+                        return columns;
+                      });
 }
 
 }  // namespace allocsim

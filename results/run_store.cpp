@@ -93,7 +93,8 @@ void add_summary_row(SummaryBuilder& summary, long row, const std::string& run,
   }
   for (const auto& [name, value] : part.group_attributes(run, layout::kAnalysis)) {
     if (const auto* d = std::get_if<double>(&value)) summary.number(name, row, *d);
-    if (const auto* i = std::get_if<long long>(&value)) summary.number(name, row, static_cast<double>(*i));
+    if (const auto* i = std::get_if<long long>(&value))
+      summary.number(name, row, static_cast<double>(*i));
   }
 }
 

@@ -23,8 +23,8 @@ RunResult run_dynamics(const TransportProblem& problem, const DynamicsOptions& o
   options.validate();
   const long n = problem.agents(), m = problem.partners();
   auto rule = make_rule(problem, options, seed, run);
-  RoundQuota quota(options.units, std::vector<double>(problem.budgets.data(),
-                                                      problem.budgets.data() + n));
+  RoundQuota quota(options.units,
+                   std::vector<double>(problem.budgets.data(), problem.budgets.data() + n));
   RunResult result;
   result.total = Matrix::Zero(n, m);
   result.last_round = Matrix::Zero(n, m);
@@ -42,8 +42,7 @@ RunResult run_dynamics(const TransportProblem& problem, const DynamicsOptions& o
     }
     if (progress) progress(round, options.rounds);
   }
-  result.seconds =
-      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  result.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
   result.rounds = options.rounds;
   if (rule->prices()) result.final_prices = *rule->prices();
   return result;

@@ -63,8 +63,8 @@ class GumbelRule : public AllocationRule {
 }  // namespace
 
 std::unique_ptr<AllocationRule> make_gumbel_rule(const TransportProblem& problem,
-                                                 const DynamicsOptions& options,
-                                                 std::uint64_t seed, std::uint64_t run) {
+                                                 const DynamicsOptions& options, std::uint64_t seed,
+                                                 std::uint64_t run) {
   return std::make_unique<GumbelRule>(problem, options, seed, run);
 }
 

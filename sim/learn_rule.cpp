@@ -86,8 +86,8 @@ class LearnRule : public AllocationRule {
 }  // namespace
 
 std::unique_ptr<AllocationRule> make_learn_rule(const TransportProblem& problem,
-                                                const DynamicsOptions& options,
-                                                std::uint64_t seed, std::uint64_t run) {
+                                                const DynamicsOptions& options, std::uint64_t seed,
+                                                std::uint64_t run) {
   return std::make_unique<LearnRule>(problem, options, seed, run);
 }
 

@@ -19,9 +19,9 @@ class QueueRule : public AllocationRule {
         seed_(seed),
         run_(run),
         kernel_(problem.agents(), problem.partners()),
-        room_quota_(options.units, std::vector<double>(problem.capacities.data(),
-                                                       problem.capacities.data() +
-                                                           problem.capacities.size())) {
+        room_quota_(options.units,
+                    std::vector<double>(problem.capacities.data(),
+                                        problem.capacities.data() + problem.capacities.size())) {
     const LogitWeights weights(problem.gains, access_of(problem), options.temperature);
     for (long i = 0; i < problem.agents(); ++i) weights.row(i, kernel_.row(i).data());
   }
@@ -53,8 +53,8 @@ class QueueRule : public AllocationRule {
   // Agent ids, one per unit, in uniformly random order (Fisher-Yates).
   static std::vector<long> arrival_order(const std::vector<long>& agent_units, RandomStream& rng) {
     std::vector<long> order;
-    order.reserve(static_cast<std::size_t>(
-        std::accumulate(agent_units.begin(), agent_units.end(), 0L)));
+    order.reserve(
+        static_cast<std::size_t>(std::accumulate(agent_units.begin(), agent_units.end(), 0L)));
     for (std::size_t i = 0; i < agent_units.size(); ++i) {
       order.insert(order.end(), static_cast<std::size_t>(agent_units[i]), static_cast<long>(i));
     }
@@ -130,8 +130,8 @@ class QueueRule : public AllocationRule {
 }  // namespace
 
 std::unique_ptr<AllocationRule> make_queue_rule(const TransportProblem& problem,
-                                                const DynamicsOptions& options,
-                                                std::uint64_t seed, std::uint64_t run) {
+                                                const DynamicsOptions& options, std::uint64_t seed,
+                                                std::uint64_t run) {
   return std::make_unique<QueueRule>(problem, options, seed, run);
 }
 

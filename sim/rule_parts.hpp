@@ -51,8 +51,9 @@ void for_row_ranges(long rows, int threads, const std::function<void(long, long)
 // The random stream of agent i in round `round` (deterministic per pair, so
 // the thread count does not matter).
 inline RandomStream agent_stream(std::uint64_t seed, std::uint64_t run, long round, long agent) {
-  return RandomStream(seed, run, StreamId::dynamics,
-                      (static_cast<std::uint64_t>(round) << 32) ^ static_cast<std::uint64_t>(agent));
+  return RandomStream(
+      seed, run, StreamId::dynamics,
+      (static_cast<std::uint64_t>(round) << 32) ^ static_cast<std::uint64_t>(agent));
 }
 // The one stream of round `round` for sequential rules.
 inline RandomStream round_stream(std::uint64_t seed, std::uint64_t run, long round) {

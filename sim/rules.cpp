@@ -47,13 +47,12 @@ void DynamicsOptions::validate() const {
           "must be in [0, dynamics.rounds) so that some rounds are recorded in the total");
   require(window >= 1, "dynamics.window", "must be at least 1");
   require(price_step >= 0 && price_step <= 1, "dynamics.price_step", "must be in [0, 1]");
-  require(learning_step > 0 && learning_step <= 1, "dynamics.learning_step",
-          "must be in (0, 1]");
+  require(learning_step > 0 && learning_step <= 1, "dynamics.learning_step", "must be in (0, 1]");
   require(reward_noise >= 0 && std::isfinite(reward_noise), "dynamics.reward_noise",
           "must be >= 0");
   require(threads >= 1, "threads", "must be at least 1");
-  require(!mean_field || rule == RuleKind::price || rule == RuleKind::gumbel,
-          "dynamics.mean_field", "applies to the price and gumbel rules only");
+  require(!mean_field || rule == RuleKind::price || rule == RuleKind::gumbel, "dynamics.mean_field",
+          "applies to the price and gumbel rules only");
 }
 
 std::unique_ptr<AllocationRule> make_rule(const TransportProblem& problem,
@@ -116,7 +115,8 @@ double LogitWeights::row(long i, double* out) const {
   // Log domain: every weight relative to the row's largest.
   double top = -std::numeric_limits<double>::infinity();
   for (long j = 0; j < m; ++j) {
-    if (!access_ || (*access_)(i, j)) top = std::max(top, (gains_(i, j) - prices_[j]) / temperature_);
+    if (!access_ || (*access_)(i, j))
+      top = std::max(top, (gains_(i, j) - prices_[j]) / temperature_);
   }
   sum = 0;
   for (long j = 0; j < m; ++j) {
@@ -131,8 +131,8 @@ void update_prices(Vector& prices, const Vector& demand, const Vector& capacity_
                    double step, double temperature, double demand_floor) {
   if (step == 0) return;
   for (long j = 0; j < prices.size(); ++j) {
-    prices[j] += step * temperature *
-                 std::log(std::max(demand[j], demand_floor) / capacity_per_round[j]);
+    prices[j] +=
+        step * temperature * std::log(std::max(demand[j], demand_floor) / capacity_per_round[j]);
   }
 }
 

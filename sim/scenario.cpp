@@ -23,8 +23,10 @@ Kind kind_from_string(const std::string& text, const std::string& what,
 }
 
 const std::pair<const char*, GainsKind> kGainsNames[] = {
-    {"rank-product", GainsKind::rank_product}, {"trait-distance", GainsKind::trait_distance},
-    {"random", GainsKind::random},             {"features", GainsKind::features},
+    {"rank-product", GainsKind::rank_product},
+    {"trait-distance", GainsKind::trait_distance},
+    {"random", GainsKind::random},
+    {"features", GainsKind::features},
     {"file", GainsKind::file}};
 const std::pair<const char*, MassKind> kMassNames[] = {{"uniform", MassKind::uniform},
                                                        {"zipf", MassKind::zipf},
@@ -55,8 +57,7 @@ Matrix gains_from_file(const ScenarioOptions& o) {
     throw InputError(o.gains_file, "is " + std::to_string(gains.rows()) + "x" +
                                        std::to_string(gains.cols()) +
                                        " but scenario.agents x scenario.partners is " +
-                                       std::to_string(o.agents) + "x" +
-                                       std::to_string(o.partners));
+                                       std::to_string(o.agents) + "x" + std::to_string(o.partners));
   }
   return gains;
 }
@@ -75,7 +76,8 @@ Matrix make_gains(const ScenarioOptions& o, std::uint64_t run, long n, long m) {
       for (long i = 0; i < n; ++i) x[i] = rng.uniform();
       for (long j = 0; j < m; ++j) y[j] = rng.uniform();
       for (long i = 0; i < n; ++i)
-        for (long j = 0; j < m; ++j) gains(i, j) = -std::pow(std::abs(x[i] - y[j]), o.gains_exponent);
+        for (long j = 0; j < m; ++j)
+          gains(i, j) = -std::pow(std::abs(x[i] - y[j]), o.gains_exponent);
       break;
     }
     case GainsKind::random:
@@ -249,12 +251,12 @@ void ScenarioOptions::validate() const {
 TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
   o.validate();
   TransportProblem problem;
-  problem.gains = o.gains == GainsKind::file ? gains_from_file(o)
-                                             : make_gains(o, run, o.agents, o.partners);
+  problem.gains =
+      o.gains == GainsKind::file ? gains_from_file(o) : make_gains(o, run, o.agents, o.partners);
   const long n = problem.gains.rows(), m = problem.gains.cols();
   RandomStream budget_rng(o.seed, run, StreamId::budgets);
-  problem.budgets = make_masses(o.budgets, o.budgets_exponent, o.budgets_spread, o.budgets_file,
-                                n, budget_rng, "scenario.budgets_file", "scenario.agents");
+  problem.budgets = make_masses(o.budgets, o.budgets_exponent, o.budgets_spread, o.budgets_file, n,
+                                budget_rng, "scenario.budgets_file", "scenario.agents");
   RandomStream capacity_rng(o.seed, run, StreamId::capacities);
   problem.capacities =
       make_masses(o.capacities, o.capacities_exponent, o.capacities_spread, o.capacities_file, m,

@@ -517,6 +517,7 @@ TEST_CASE("whole-number budgets and capacities give a whole-number coupling with
     INFO("trial " << trial);
     CHECK((result.coupling.array() - result.coupling.array().round()).abs().maxCoeff() == 0.0);
     CHECK((result.coupling.rowwise().sum() - p.budgets).cwiseAbs().maxCoeff() == 0.0);
-    CHECK((result.coupling.colwise().sum().transpose() - p.capacities).cwiseAbs().maxCoeff() == 0.0);
+    CHECK((result.coupling.colwise().sum().transpose() - p.capacities).cwiseAbs().maxCoeff() ==
+          0.0);
   }
 }

@@ -3,9 +3,9 @@
 #include <set>
 
 #include "allocsim/core/error.hpp"
-#include "test_files.hpp"
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
+#include "test_files.hpp"
 
 using namespace allocsim;
 
@@ -28,8 +28,9 @@ TEST_CASE("every key is declared once, with a section and a valid default") {
 }
 
 TEST_CASE("a file's values are read and the command line wins") {
-  const std::string path = write_ini("basic", "# a comment\n[scenario]\nagents = 7\n\n[dynamics]\n"
-                                              "rule = queue\ntemperature = 0.25\n");
+  const std::string path = write_ini("basic",
+                                     "# a comment\n[scenario]\nagents = 7\n\n[dynamics]\n"
+                                     "rule = queue\ntemperature = 0.25\n");
   const ExperimentValues values = experiment_values(path, {{"dynamics.temperature", "0.5"}});
   CHECK(values.integer("scenario.agents") == 7);
   CHECK(values.text("dynamics.rule") == "queue");
@@ -51,11 +52,10 @@ TEST_CASE("an unknown key names the file, the line and the nearest valid key") {
 TEST_CASE("bad values name where they were given and what is valid") {
   const std::string path = write_ini("bad", "[dynamics]\ntemperature = 0\n");
   CHECK_THROWS_WITH(experiment_values(path, {}),
-                    Catch::StartsWith(path + ":2: dynamics.temperature") &&
-                        Catch::Contains("> 0"));
-  CHECK_THROWS_WITH(experiment_values("", {{"dynamics.rule", "auction"}}),
-                    Catch::StartsWith("--dynamics.rule") &&
-                        Catch::Contains("price|gumbel|queue|learn"));
+                    Catch::StartsWith(path + ":2: dynamics.temperature") && Catch::Contains("> 0"));
+  CHECK_THROWS_WITH(
+      experiment_values("", {{"dynamics.rule", "auction"}}),
+      Catch::StartsWith("--dynamics.rule") && Catch::Contains("price|gumbel|queue|learn"));
   CHECK_THROWS_WITH(experiment_values("", {{"dynamics.rounds", "2.5"}}),
                     Catch::Contains("whole number"));
   CHECK_THROWS_WITH(experiment_values("", {{"scenario.agents", "many"}}),

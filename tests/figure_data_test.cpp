@@ -2,8 +2,8 @@
 // marginal errors that plot draws.
 #include "allocsim/plots/figure_data.hpp"
 
-#include <catch2/catch.hpp>
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cmath>
 
 #include "allocsim/results/layout.hpp"
@@ -50,7 +50,8 @@ TEST_CASE("a metric against temperature takes its null band from mean and sd") {
 TEST_CASE("an estimator score card bands the cases by quintile of the truth, with coverage") {
   std::vector<RunRecord> rows;
   for (int k = 0; k < 10; ++k) {
-    RunRecord r{"case-" + std::to_string(k), {}, {{layout::kSourceColumn, k < 5 ? "model" : "queue"}}};
+    RunRecord r{
+        "case-" + std::to_string(k), {}, {{layout::kSourceColumn, k < 5 ? "model" : "queue"}}};
     r.numbers[layout::kTrueEpsilonColumn] = 0.01 * (k + 1);
     r.numbers[layout::kUnitsColumn] = 1000;
     if (k != 9) r.numbers[layout::kEpsilon] = 0.01 * (k + 1) * 1.1;  // case 9 unanswered
@@ -77,9 +78,9 @@ TEST_CASE("an estimator score card bands the cases by quintile of the truth, wit
   CHECK(by_truth[4].intervals == 0);  // case 8 has no interval, case 9 no answer
   CHECK(std::isnan(by_truth[4].coverage));
   // Equal units: every case in band 1.
-  const auto units_band = std::find_if(card.bands.begin(), card.bands.end(), [](const CoverageBand& b) {
-    return b.axis == "units" && b.band == 1;
-  });
+  const auto units_band =
+      std::find_if(card.bands.begin(), card.bands.end(),
+                   [](const CoverageBand& b) { return b.axis == "units" && b.band == 1; });
   REQUIRE(units_band != card.bands.end());
   CHECK(units_band->intervals == 8);
 }
@@ -90,8 +91,8 @@ TEST_CASE("marginal errors are the L1 distances of each snapshot's shares to the
   Matrix on_target(2, 2), empty = Matrix::Zero(2, 2);
   on_target << 1, 2, 3, 2;  // rows 3, 5 of 8 vs budgets 1:3; columns 4, 4 vs 2:2
   Trajectories figure;
-  marginal_errors(budgets, capacities, 2, [&](long k) { return k == 0 ? on_target : empty; },
-                  figure);
+  marginal_errors(
+      budgets, capacities, 2, [&](long k) { return k == 0 ? on_target : empty; }, figure);
   REQUIRE(figure.row_error.size() == 2);
   CHECK(figure.row_error[0] == Approx(std::abs(3.0 / 8 - 0.25) + std::abs(5.0 / 8 - 0.75)));
   CHECK(figure.column_error[0] == Approx(0.0).margin(1e-15));

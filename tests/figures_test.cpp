@@ -1,7 +1,7 @@
 // Figures: escaping of text, valid images, deterministic scripts, no
 // command injection through labels, and nothing left behind on failure.
-#include <catch2/catch.hpp>
 #include <unistd.h>
+#include <catch2/catch.hpp>
 
 #include <cmath>
 #include <cstdlib>
@@ -22,7 +22,8 @@ namespace {
 struct TemporaryFolder {
   fs::path path;
   explicit TemporaryFolder(const std::string& name) {
-    path = fs::temp_directory_path() / ("allocsim-figures-" + name + "-" + std::to_string(::getpid()));
+    path =
+        fs::temp_directory_path() / ("allocsim-figures-" + name + "-" + std::to_string(::getpid()));
     fs::remove_all(path);
     fs::create_directories(path);
   }
@@ -49,9 +50,11 @@ PngSize read_png_size(const std::string& path) {
   unsigned char head[24] = {};
   if (!in.read(reinterpret_cast<char*>(head), sizeof head)) return {};
   const unsigned char signature[8] = {0x89, 'P', 'N', 'G', '\r', '\n', 0x1a, '\n'};
-  if (!std::equal(signature, signature + 8, head) || std::string(head + 12, head + 16) != "IHDR") return {};
+  if (!std::equal(signature, signature + 8, head) || std::string(head + 12, head + 16) != "IHDR")
+    return {};
   auto big_endian = [&](int at) {
-    return (unsigned(head[at]) << 24) | (unsigned(head[at + 1]) << 16) | (unsigned(head[at + 2]) << 8) | head[at + 3];
+    return (unsigned(head[at]) << 24) | (unsigned(head[at + 1]) << 16) |
+           (unsigned(head[at + 2]) << 8) | head[at + 3];
   };
   return {true, big_endian(16), big_endian(20)};
 }
@@ -128,7 +131,8 @@ EstimatorScoreCard sample_score_card() {
     figure.cases.push_back({truth, estimate, 200.0 * (1 + k), k % 2 ? "model" : "queue"});
   }
   for (const std::string axis : {"true epsilon", "units"})
-    for (int band = 1; band <= 5; ++band) figure.bands.push_back({axis, band, 0.9 + 0.01 * band, 8});
+    for (int band = 1; band <= 5; ++band)
+      figure.bands.push_back({axis, band, 0.9 + 0.01 * band, 8});
   return figure;
 }
 
@@ -138,7 +142,8 @@ std::vector<std::string> draw_all(const TemporaryFolder& folder, const FigureOpt
   AllocationHeatmaps heatmaps = sample_heatmaps();
   MetricAgainstTemperature metric = sample_metric();
   TemperatureRecovery recovery{"temperature recovered", sample_points()};
-  DistanceAgainstTemperature distance{"distance to couplings", "KL divergence", sample_points(), sample_points()};
+  DistanceAgainstTemperature distance{"distance to couplings", "KL divergence", sample_points(),
+                                      sample_points()};
   for (auto& p : distance.to_exact) p.y *= 10;
   Trajectories trajectories = sample_trajectories();
   EstimatorScoreCard scores = sample_score_card();
@@ -182,7 +187,7 @@ TEST_CASE("escape_gnuplot_text doubles quotes and escapes enhanced-text specials
   CHECK(escape_gnuplot_text("back\\slash") == "back\\\\slash");
   CHECK(escape_gnuplot_text("`touch x`") == "`touch x`");  // inert inside single quotes
   CHECK(escape_gnuplot_text("\"q\"") == "\"q\"");
-  CHECK(escape_gnuplot_text("ε and λ") == "ε and λ");     // UTF-8 passes through
+  CHECK(escape_gnuplot_text("ε and λ") == "ε and λ");  // UTF-8 passes through
   CHECK(quote_gnuplot_text("x'") == "'x'''");
   CHECK(escape_gnuplot_text("'quoted'") == "&{}''quoted''");  // a leading '' would end the string
 }
@@ -240,7 +245,7 @@ TEST_CASE("every figure writes a valid PNG of the default size", "[figures]") {
   TemporaryFolder folder("png");
   const std::vector<std::string> written = draw_all(folder, {});
   const std::vector<std::pair<unsigned, unsigned>> sizes = {{1360, 640}, {1000, 700}, {900, 800},
-                                                             {1000, 700}, {1000, 800}, {1400, 1100}};
+                                                            {1000, 700}, {1000, 800}, {1400, 1100}};
   REQUIRE(written.size() == sizes.size());
   for (std::size_t k = 0; k < written.size(); ++k) {
     INFO(written[k]);
@@ -260,15 +265,18 @@ TEST_CASE("a chosen size and the SVG and PDF terminals are honoured", "[figures]
   FigureOptions options;
   options.width_pixels = 640;
   options.height_pixels = 480;
-  const std::string png = draw_temperature_recovery({"t", sample_points()}, folder.stem("small"), options);
+  const std::string png =
+      draw_temperature_recovery({"t", sample_points()}, folder.stem("small"), options);
   const PngSize size = read_png_size(png);
   CHECK((size.valid && size.width == 640 && size.height == 480));
   options.format = ImageFormat::svg;
-  const std::string svg = draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options);
+  const std::string svg =
+      draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options);
   CHECK(fs::path(svg).extension() == ".svg");
   CHECK(read_text(svg).find("<svg") != std::string::npos);
   options.format = ImageFormat::pdf;
-  const std::string pdf = draw_allocation_heatmaps(sample_heatmaps(), folder.stem("heatmaps"), options);
+  const std::string pdf =
+      draw_allocation_heatmaps(sample_heatmaps(), folder.stem("heatmaps"), options);
   CHECK(read_text(pdf).rfind("%PDF-", 0) == 0);
 }
 
@@ -287,7 +295,8 @@ TEST_CASE("the script for fixed data is the same at every generation", "[figures
   REQUIRE(second == first);
   for (std::size_t k = 0; k < second.size(); ++k) CHECK(read_text(second[k]) == first_text[k]);
   // The script draws to the final image name and holds the data inline.
-  CHECK(first_text[0].find("set output '" + folder.stem("heatmaps") + ".png'") != std::string::npos);
+  CHECK(first_text[0].find("set output '" + folder.stem("heatmaps") + ".png'") !=
+        std::string::npos);
   CHECK(first_text[0].find("\ne\n") != std::string::npos);
   // Different data give a different script.
   MetricAgainstTemperature other = sample_metric();
@@ -330,11 +339,13 @@ TEST_CASE("a failing gnuplot leaves no file behind and says so", "[figures]") {
   TemporaryFolder folder("failure");
   FigureOptions options;
   options.gnuplot_program = "false";
-  CHECK_THROWS_WITH(draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options),
-                    Catch::Contains("gnuplot failed"));
+  CHECK_THROWS_WITH(
+      draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options),
+      Catch::Contains("gnuplot failed"));
   options.gnuplot_program = "/no/such/gnuplot";
-  CHECK_THROWS_WITH(draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options),
-                    Catch::Contains("could not be run"));
+  CHECK_THROWS_WITH(
+      draw_metric_against_temperature(sample_metric(), folder.stem("metric"), options),
+      Catch::Contains("could not be run"));
   CHECK(fs::directory_iterator(folder.path) == fs::directory_iterator());
 }
 
@@ -342,14 +353,18 @@ TEST_CASE("unusable figure data is refused with a reason", "[figures]") {
   TemporaryFolder folder("refused");
   AllocationHeatmaps heatmaps = sample_heatmaps();
   heatmaps.panels[1].values = Matrix::Ones(3, 3);
-  CHECK_THROWS_WITH(draw_allocation_heatmaps(heatmaps, folder.stem("h")), Catch::Contains("expected 12x9"));
+  CHECK_THROWS_WITH(draw_allocation_heatmaps(heatmaps, folder.stem("h")),
+                    Catch::Contains("expected 12x9"));
   heatmaps = sample_heatmaps();
   heatmaps.ordering.rows = {0, 0, 1};
   heatmaps.ordering.columns = {0};
-  CHECK_THROWS_WITH(draw_allocation_heatmaps(heatmaps, folder.stem("h")), Catch::Contains("permutation"));
-  CHECK_THROWS_AS(draw_temperature_recovery({"t", {{1, 0}, {2, kNoValue}}}, folder.stem("r")), InputError);
+  CHECK_THROWS_WITH(draw_allocation_heatmaps(heatmaps, folder.stem("h")),
+                    Catch::Contains("permutation"));
+  CHECK_THROWS_AS(draw_temperature_recovery({"t", {{1, 0}, {2, kNoValue}}}, folder.stem("r")),
+                  InputError);
   CHECK_THROWS_AS(draw_metric_against_temperature({}, folder.stem("m")), InputError);
-  CHECK_THROWS_WITH(draw_estimator_score_card({"s", {{0.1, kNoValue, 100, "a"}}, {}}, folder.stem("s")),
-                    Catch::Contains("no answered case"));
+  CHECK_THROWS_WITH(
+      draw_estimator_score_card({"s", {{0.1, kNoValue, 100, "a"}}, {}}, folder.stem("s")),
+      Catch::Contains("no answered case"));
   CHECK(fs::directory_iterator(folder.path) == fs::directory_iterator());
 }

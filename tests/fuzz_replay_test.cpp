@@ -26,7 +26,8 @@ std::vector<fs::path> cases_of(const std::string& target) {
     const fs::path dir = kFuzzDir / kind / target;
     if (!fs::is_directory(dir)) continue;
     for (const auto& entry : fs::directory_iterator(dir)) {
-      if (entry.is_regular_file() && entry.path().filename() != "README.md") files.push_back(entry.path());
+      if (entry.is_regular_file() && entry.path().filename() != "README.md")
+        files.push_back(entry.path());
     }
   }
   std::sort(files.begin(), files.end());

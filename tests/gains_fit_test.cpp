@@ -47,8 +47,8 @@ Case make_case(std::uint64_t seed, const Vector& lambda) {
 Matrix draw_counts(const Matrix& coupling, long units, std::uint64_t seed) {
   RandomStream rng(seed, 2, StreamId::dynamics);
   Matrix counts = Matrix::Zero(coupling.rows(), coupling.cols());
-  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()),
-                  coupling.sum(), counts.data());
+  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()), coupling.sum(),
+                  counts.data());
   return counts;
 }
 

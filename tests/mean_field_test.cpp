@@ -112,8 +112,7 @@ TEST_CASE("mean-field price rule with a smaller step reaches the same fixed poin
   options.temperature = 0.1;
   options.price_step = 0.5;
   const Matrix mean_field = mean_field_fixed_point(problem, options);
-  CHECK((mean_field - entropic_coupling(problem, 0.1)).cwiseAbs().maxCoeff() <=
-        kCouplingAgreement);
+  CHECK((mean_field - entropic_coupling(problem, 0.1)).cwiseAbs().maxCoeff() <= kCouplingAgreement);
 }
 
 TEST_CASE("mean-field gumbel rule has the same fixed point as mean-field price") {

@@ -67,15 +67,17 @@ TEST_CASE("the environment variable lowers the limit and is named in the message
   CHECK(available_memory_bytes() <= 1e6);
   CHECK_NOTHROW(require_memory(9e5, "work", "here"));
   const std::string message = message_of([] { require_memory(2e6, "work", "here", "do less"); });
-  CHECK(message == "here: work needs about 2 MB of memory (estimate), but 1 MB is available "
-                   "(ALLOCSIM_MEMORY_LIMIT_BYTES); do less");
+  CHECK(message ==
+        "here: work needs about 2 MB of memory (estimate), but 1 MB is available "
+        "(ALLOCSIM_MEMORY_LIMIT_BYTES); do less");
 }
 
 TEST_CASE("a malformed limit variable is an input error naming it", "[memory]") {
   for (const char* bad : {"lots", "-5", "0", "1e6x", "inf"}) {
     MemoryLimitVariable limit(bad);
     INFO(bad);
-    CHECK(message_of([] { available_memory_bytes(); }).rfind("ALLOCSIM_MEMORY_LIMIT_BYTES: ", 0) == 0);
+    CHECK(message_of([] { available_memory_bytes(); }).rfind("ALLOCSIM_MEMORY_LIMIT_BYTES: ", 0) ==
+          0);
   }
 }
 
@@ -96,7 +98,8 @@ TEST_CASE("the CSV reader refuses a file whose fields would not fit, before pars
   const auto path = std::filesystem::temp_directory_path() / "allocsim_memory_limit_test.csv";
   {
     std::ofstream out(path);
-    for (int i = 0; i < 2000; ++i) out << "1,2,3,4,5,6,7,8,9,10\n";  // 20000 fields, 42 kB (21 bytes a line)
+    for (int i = 0; i < 2000; ++i)
+      out << "1,2,3,4,5,6,7,8,9,10\n";  // 20000 fields, 42 kB (21 bytes a line)
   }
   {
     MemoryLimitVariable limit("1e5");

@@ -5,8 +5,8 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <iostream>
-#include <string>
 #include <random>
+#include <string>
 
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/analysis/exact_transport.hpp"
@@ -15,10 +15,11 @@ using namespace allocsim;
 
 namespace {
 
-constexpr std::uint64_t kSeed = 20260309;     // printed by every randomised case
-constexpr double kTolerance = 1e-9;           // marginal violation asked of the entropic solver
-constexpr long kIterationCap = 20000;         // keeps the hardest cases quick; may end not_converged
-constexpr double kTinyMassAgreement = 1e-3;   // relative error allowed on a mass of 1e-12 (~1e-16 absolute)
+constexpr std::uint64_t kSeed = 20260309;  // printed by every randomised case
+constexpr double kTolerance = 1e-9;        // marginal violation asked of the entropic solver
+constexpr long kIterationCap = 20000;      // keeps the hardest cases quick; may end not_converged
+constexpr double kTinyMassAgreement =
+    1e-3;  // relative error allowed on a mass of 1e-12 (~1e-16 absolute)
 
 // n x m problem with gains from `gain`, budgets and capacities in [0.2, 1.2)
 // normalised to total 1.
@@ -46,7 +47,8 @@ double relative_violation(const TransportProblem& p, const Matrix& pi) {
          p.total_mass();
 }
 
-EntropicResult solve_at(const TransportProblem& p, double epsilon, long max_iterations = kIterationCap) {
+EntropicResult solve_at(const TransportProblem& p, double epsilon,
+                        long max_iterations = kIterationCap) {
   EntropicOptions options;
   options.epsilon = epsilon;
   options.tolerance = kTolerance;
@@ -247,8 +249,7 @@ TEST_CASE("exact transport with gains up to 1e300 keeps finite potentials and a 
   }
 }
 
-TEST_CASE("epsilon far outside the gain scale ends finite or says not converged",
-          "[numerical]") {
+TEST_CASE("epsilon far outside the gain scale ends finite or says not converged", "[numerical]") {
   std::mt19937_64 rng(kSeed + 8);
   const TransportProblem p = unit_gains_problem(7, 8, rng);
   for (const double epsilon : {1e-300, 1e-12, 1e300}) {

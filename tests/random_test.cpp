@@ -35,7 +35,8 @@ double binomial_chi_square(long n, double p, long low, long high, std::uint64_t 
 }  // namespace
 
 TEST_CASE("the same key gives the same numbers and different keys differ") {
-  RandomStream a(1, 2, StreamId::gains, 3), b(1, 2, StreamId::gains, 3), c(1, 2, StreamId::gains, 4);
+  RandomStream a(1, 2, StreamId::gains, 3), b(1, 2, StreamId::gains, 3),
+      c(1, 2, StreamId::gains, 4);
   for (int k = 0; k < 100; ++k) {
     const auto x = a.next();
     CHECK(x == b.next());
@@ -134,7 +135,8 @@ TEST_CASE("log_factorial matches the sum of logs") {
   double exact = 0;
   for (long k = 1; k <= 2000; ++k) {
     exact += std::log(static_cast<double>(k));
-    if (k % 97 == 0 || k == 255 || k == 256) REQUIRE(log_factorial(k) == Approx(exact).epsilon(1e-13));
+    if (k % 97 == 0 || k == 255 || k == 256)
+      REQUIRE(log_factorial(k) == Approx(exact).epsilon(1e-13));
   }
 }
 

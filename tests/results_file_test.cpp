@@ -49,8 +49,12 @@ TEST_CASE("a run written with RunWriter reads back unchanged") {
   const std::string path = "results_file_test_roundtrip.h5";
   const TransportProblem p = small_problem();
   const Matrix counts = counts_of(p);
-  const AllocationReport report =
-      analyze_allocation({counts, p.gains, p.access, {"counts", "gains", "access"}}, {});
+  AllocationInput input;
+  input.allocation = counts;
+  input.gains = p.gains;
+  input.access = p.access;
+  input.sources = {"counts", "gains", "access"};
+  const AllocationReport report = analyze_allocation(input, {});
   {
     ResultsFile file(path, "[scenario]\nagents = 3\n", "test");
     RunWriter run = file.create_run(run_name(0));

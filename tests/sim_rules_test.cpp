@@ -104,8 +104,10 @@ TEST_CASE("queue never exceeds a partner's room and spends every budget") {
       const std::vector<long> room = room_quota.next_round();
       rule->play_round(round, units, flows);
       REQUIRE(rule->unplaced_units() == 0);
-      for (long i = 0; i < 9; ++i) REQUIRE(flows.row(i).sum() == units[static_cast<std::size_t>(i)]);
-      for (long j = 0; j < 13; ++j) REQUIRE(flows.col(j).sum() <= room[static_cast<std::size_t>(j)]);
+      for (long i = 0; i < 9; ++i)
+        REQUIRE(flows.row(i).sum() == units[static_cast<std::size_t>(i)]);
+      for (long j = 0; j < 13; ++j)
+        REQUIRE(flows.col(j).sum() <= room[static_cast<std::size_t>(j)]);
     }
   }
 }
@@ -139,7 +141,8 @@ TEST_CASE("every sampled rule spends exactly the round's units and respects acce
 
 TEST_CASE("the same seed gives identical snapshots, another seed does not") {
   const TransportProblem problem = make_scenario(small_scenario());
-  for (const RuleKind rule : {RuleKind::price, RuleKind::gumbel, RuleKind::queue, RuleKind::learn}) {
+  for (const RuleKind rule :
+       {RuleKind::price, RuleKind::gumbel, RuleKind::queue, RuleKind::learn}) {
     SnapshotCopy a, b, c;
     run_dynamics(problem, short_run(rule), kSeed, 0, &a);
     run_dynamics(problem, short_run(rule), kSeed, 0, &b);

@@ -3,8 +3,8 @@
 #include <fstream>
 
 #include "allocsim/core/error.hpp"
-#include "test_files.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "test_files.hpp"
 
 using namespace allocsim;
 

@@ -25,10 +25,12 @@ TEST_CASE("malformed sweeps name where they were written") {
                     Catch::Contains("exp.ini:7") && Catch::Contains("> 0"));
   CHECK_THROWS_WITH(expand_sweep_values("linear(0, 1, 2.5)", "exp.ini:7"),
                     Catch::Contains("whole number"));
-  CHECK_THROWS_WITH(expand_sweep_values("linear(0, one, 3)", "exp.ini:7"), Catch::Contains("'one'"));
+  CHECK_THROWS_WITH(expand_sweep_values("linear(0, one, 3)", "exp.ini:7"),
+                    Catch::Contains("'one'"));
   CHECK_THROWS_WITH(expand_sweep_values("0.1,,0.2", "exp.ini:7"), Catch::Contains("empty item"));
   CHECK_THROWS_WITH(expand_sweep_values("1..x", "exp.ini:7"), Catch::Contains("not a sweep"));
-  CHECK_THROWS_WITH(expand_sweep_values("geom(1,2,3)", "exp.ini:7"), Catch::Contains("not a sweep"));
+  CHECK_THROWS_WITH(expand_sweep_values("geom(1,2,3)", "exp.ini:7"),
+                    Catch::Contains("not a sweep"));
   CHECK_THROWS_AS(sweep_combine_from_string("cross", "exp.ini:9"), InputError);
 }
 

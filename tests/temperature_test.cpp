@@ -47,8 +47,8 @@ TransportProblem scenario(GainsKind kind, long n, long m, std::uint64_t seed) {
 Matrix draw_counts(const Matrix& coupling, long units, std::uint64_t seed) {
   RandomStream rng(seed, 1, StreamId::dynamics);
   Matrix counts = Matrix::Zero(coupling.rows(), coupling.cols());
-  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()),
-                  coupling.sum(), counts.data());
+  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()), coupling.sum(),
+                  counts.data());
   return counts;
 }
 
@@ -90,8 +90,7 @@ TEST_CASE("a noise-free plan under an access mask gives back its epsilon") {
   Matrix plan = plan_from_duals(problem.gains, 0.2, 5);
   for (Eigen::Index k = 0; k < plan.size(); ++k)
     if (access.data()[k] == 0) plan.data()[k] = 0;
-  const TemperatureResult r =
-      estimate_temperature(observe_allocation(plan, problem.gains, access));
+  const TemperatureResult r = estimate_temperature(observe_allocation(plan, problem.gains, access));
   REQUIRE(r.estimated());
   CHECK(std::abs(r.epsilon - 0.2) / 0.2 < kEpsilonAccuracy);
 }
@@ -124,7 +123,8 @@ TEST_CASE("every 2x2 cross-ratio of a Sinkhorn coupling agrees with the estimate
   CHECK(checked > 40);
 }
 
-TEST_CASE("on a 2x2 table of counts the estimate, its standard error and interval have closed forms") {
+TEST_CASE(
+    "on a 2x2 table of counts the estimate, its standard error and interval have closed forms") {
   // With 4 cells, row, column effects and the gains the log-linear model is
   // saturated: beta_hat = log(n11 n22 / (n12 n21)) / contrast, and
   // var(log odds ratio) = sum 1/n_ij (Woolf 1955; Agresti ch. 3).
@@ -269,8 +269,8 @@ TEST_CASE("the interval covers the true epsilon at the nominal rate", "[slow]") 
   // 4 gains families x 60 seeded cases drawn from the entropic model.
   // Coverage within 92-98% (issue 4); the standardised errors
   // (eps_hat - eps) / se should have mean near 0 and spread near 1.
-  const GainsKind kinds[] = {GainsKind::rank_product, GainsKind::trait_distance,
-                             GainsKind::random, GainsKind::features};
+  const GainsKind kinds[] = {GainsKind::rank_product, GainsKind::trait_distance, GainsKind::random,
+                             GainsKind::features};
   const double epsilons[] = {0.05, 0.1, 0.25, 0.5};
   const long units[] = {2000, 5000, 20000};
   long cases = 0, covered = 0;

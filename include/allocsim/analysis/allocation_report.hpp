@@ -36,11 +36,11 @@ extern const char* const kTemperatureCaution;
 
 struct AllocationInput {
   Matrix allocation;
-  std::optional<Matrix> gains;        // absent: no temperature, no couplings
+  std::optional<Matrix> gains;  // absent: no temperature, no couplings
   std::optional<AccessMask> access;
   AllocationSources sources;
   std::vector<std::string> agent_labels, partner_labels;  // of the input rows; empty = none
-  ValueReading reading;               // counts or shares
+  ValueReading reading;                                   // counts or shares
   std::vector<std::string> matching;  // how the files were matched, one phrase each, for the report
 };
 
@@ -48,18 +48,18 @@ struct AllocationInput {
 // of n x m). n + m - 1 is the most links a basic (forest-supported) optimal
 // coupling can use.
 struct WeightConcentration {
-  long forest_links = 0;            // n + m - 1
-  double share_on_forest_links = 0; // share of the total on the n + m - 1 largest cells
+  long forest_links = 0;             // n + m - 1
+  double share_on_forest_links = 0;  // share of the total on the n + m - 1 largest cells
   long nonzero_cells = 0;
-  long cells = 0;                   // n * m
+  long cells = 0;                                             // n * m
   long cells_for_50 = 0, cells_for_70 = 0, cells_for_90 = 0;  // fewest cells carrying that share
 };
 WeightConcentration weight_concentration(const Matrix& shares);
 
 // Rankings of the analysed agents and partners on the binarised matrix.
 struct Orderings {
-  FitnessComplexityResult fitness;  // Fitness-Complexity
-  ComplexityIndexResult complexity; // ECI and PCI
+  FitnessComplexityResult fitness;   // Fitness-Complexity
+  ComplexityIndexResult complexity;  // ECI and PCI
   Eigen::VectorXi agent_degrees, partner_degrees;
 };
 
@@ -83,12 +83,12 @@ struct StructureReport {
 
 struct AllocationReport {
   ObservedAllocation observed;
-  Matrix values;           // the allocation as given, on the kept rows and columns
-  BinaryMatrix links;      // `values` binarised by the report's rule
+  Matrix values;       // the allocation as given, on the kept rows and columns
+  BinaryMatrix links;  // `values` binarised by the report's rule
   std::vector<std::string> agent_labels, partner_labels;  // of the input; empty = none
   std::vector<std::string> matching;                      // from the input
   TemperatureResult temperature;
-  ExactResult exact;       // solved once, when gains are known (else status infeasible)
+  ExactResult exact;  // solved once, when gains are known (else status infeasible)
   Comparison versus_exact, versus_entropic;
   bool has_entropic = false;
   StructureReport structure;

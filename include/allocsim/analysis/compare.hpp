@@ -33,7 +33,8 @@
 namespace allocsim {
 
 struct ComparisonOptions {
-  double support_threshold = 1e-12;  // a cell is in a support when its share exceeds this; in [0, 1)
+  double support_threshold =
+      1e-12;  // a cell is in a support when its share exceeds this; in [0, 1)
 
   // Throws InputError naming the wrong field.
   void validate() const;

@@ -52,8 +52,8 @@
 namespace allocsim {
 
 struct GainsFitOptions {
-  double tolerance = 1e-10;  // stop when max_k |<F_k, pi> - <F_k, p>| / scale_k <= this; in (0,
-                             // 1e-3] (scale_k = max |F_k| over allowed cells)
+  double tolerance = 1e-10;   // stop when max_k |<F_k, pi> - <F_k, p>| / scale_k <= this; in (0,
+                              // 1e-3] (scale_k = max |F_k| over allowed cells)
   long max_iterations = 100;  // Newton steps; >= 1
   double max_lambda =
       1e8;  // |lambda_k| above this (in units of 1/scale_k) counts as diverging; > 0

@@ -41,7 +41,7 @@ ValueKind value_kind_from_string(const std::string& text);
 
 struct ValueReading {
   ValueKind kind = ValueKind::automatic;  // automatic: counts when every entry is whole
-  double units = 0;                       // shares only: N independent units behind them; 0 = unknown
+  double units = 0;  // shares only: N independent units behind them; 0 = unknown
 
   // Throws InputError naming the wrong field ("values" or "units").
   void validate() const;
@@ -52,23 +52,23 @@ constexpr double kLargeUnitCount = 1e7;
 constexpr double kLargeCellValue = 1000;
 
 struct ObservedAllocation {
-  Matrix shares;                           // P / sum(P) over the kept rows and columns
-  TransportProblem problem;                // gains and access of the kept cells (gains all 0
-                                           // without gains); budgets and capacities = the row
-                                           // and column sums of `shares`
-  bool has_gains = false;                  // gains were given
-  bool counts = false;                     // read as counts
-  double units = 0;                        // N: sum(P) for counts, the given N for shares, or 0
-  std::string reading;                     // how the values were read, one phrase for reports
-  std::string warning;                     // when the unit count looks doubtful; else empty
-  std::vector<Eigen::Index> kept_rows;     // indices into the input, increasing
+  Matrix shares;                        // P / sum(P) over the kept rows and columns
+  TransportProblem problem;             // gains and access of the kept cells (gains all 0
+                                        // without gains); budgets and capacities = the row
+                                        // and column sums of `shares`
+  bool has_gains = false;               // gains were given
+  bool counts = false;                  // read as counts
+  double units = 0;                     // N: sum(P) for counts, the given N for shares, or 0
+  std::string reading;                  // how the values were read, one phrase for reports
+  std::string warning;                  // when the unit count looks doubtful; else empty
+  std::vector<Eigen::Index> kept_rows;  // indices into the input, increasing
   std::vector<Eigen::Index> kept_columns;
   std::vector<Eigen::Index> dropped_rows;  // all-zero rows (indices from 0)
   std::vector<Eigen::Index> dropped_columns;
-  std::string note;                        // says what was dropped; empty when nothing
-  AllocationSources sources;               // for messages of later steps
+  std::string note;           // says what was dropped; empty when nothing
+  AllocationSources sources;  // for messages of later steps
 
-  double observed_gain() const;            // <gains, shares>
+  double observed_gain() const;  // <gains, shares>
 };
 
 // Throws InputError (naming the source, and the row and column counted from
@@ -85,7 +85,7 @@ ObservedAllocation observe_allocation(const Matrix& allocation, const std::optio
 // put a coupling of the kept cells back into the input's shape, see expand).
 Matrix restrict_to_kept(const Matrix& full, const ObservedAllocation& observed);
 // The kept-size matrix placed into the input's shape, zeros elsewhere.
-Matrix expand_to_input(const Matrix& kept, const ObservedAllocation& observed,
-                       Eigen::Index rows, Eigen::Index columns);
+Matrix expand_to_input(const Matrix& kept, const ObservedAllocation& observed, Eigen::Index rows,
+                       Eigen::Index columns);
 
 }  // namespace allocsim

@@ -13,10 +13,14 @@ class JsonObject {
  public:
   JsonObject& add(const std::string& key, double value);
   JsonObject& add(const std::string& key, long long value);
-  JsonObject& add(const std::string& key, int value) { return add(key, static_cast<long long>(value)); }
+  JsonObject& add(const std::string& key, int value) {
+    return add(key, static_cast<long long>(value));
+  }
   JsonObject& add(const std::string& key, bool value);
   JsonObject& add(const std::string& key, const std::string& value);
-  JsonObject& add(const std::string& key, const char* value) { return add(key, std::string(value)); }
+  JsonObject& add(const std::string& key, const char* value) {
+    return add(key, std::string(value));
+  }
   JsonObject& add(const std::string& key, const JsonObject& value);
   JsonObject& add(const std::string& key, const std::vector<double>& values);
   JsonObject& add(const std::string& key, const std::vector<std::string>& values);

@@ -21,7 +21,7 @@ namespace allocsim {
 enum class OutputKind { absent, regular, directory, device_or_fifo, other };
 
 struct ResolvedOutput {
-  std::string path;   // the file to write (a symlink's target, made absolute when followed)
+  std::string path;  // the file to write (a symlink's target, made absolute when followed)
   OutputKind kind = OutputKind::absent;
   std::string described;  // "a FIFO", "a character device", "a directory", ...
 };

@@ -26,7 +26,8 @@ enum class StreamId : std::uint64_t {
   capacities = 3,
   access = 4,
   dynamics = 5,
-  design = 6,  // benchmark sets: what each case draws (temperature, units, shape, laws) and their order
+  design =
+      6,  // benchmark sets: what each case draws (temperature, units, shape, laws) and their order
 };
 
 // One step of splitmix64: advances `state` and returns the mixed output.
@@ -65,8 +66,8 @@ class RandomStream {
 // against the prefix sums, O(size + n). Otherwise conditional binomials,
 // x_j ~ Binomial(n - placed, w_j / remaining weight), which stop as soon as
 // all n units are placed; O(size + sum_j sd_j).
-void add_multinomial(RandomStream& rng, long n, const double* weights, long size,
-                     double weight_sum, double* out);
+void add_multinomial(RandomStream& rng, long n, const double* weights, long size, double weight_sum,
+                     double* out);
 
 // log(k!) for k >= 0 (a table up to 255, Stirling's series beyond; relative
 // error below 1e-15). Thread-safe, unlike std::lgamma on some platforms.

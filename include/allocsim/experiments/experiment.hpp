@@ -26,7 +26,8 @@ SimulationSettings simulation_settings(const ExperimentValues& values);
 
 // Reads --config (when not empty), then applies the command-line values,
 // which win over the file.
-ExperimentValues experiment_values(const std::string& config_path,
-                                   const std::vector<std::pair<std::string, std::string>>& command_line);
+ExperimentValues experiment_values(
+    const std::string& config_path,
+    const std::vector<std::pair<std::string, std::string>>& command_line);
 
 }  // namespace allocsim

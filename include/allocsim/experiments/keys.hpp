@@ -26,7 +26,7 @@ enum class KeyKind {
 };
 
 struct ExperimentKey {
-  std::string name;                // section.key
+  std::string name;  // section.key
   KeyKind kind = KeyKind::real;
   std::string default_value;       // as it would be written in a file
   std::string description;         // one line for --help: meaning, unit
@@ -83,7 +83,7 @@ class ExperimentValues {
 
 // The [sweep] section of an experiment file (see sweep.hpp for its syntax).
 struct SweepSection {
-  std::vector<SweepAxis> axes;       // in file order
+  std::vector<SweepAxis> axes;  // in file order
   SweepCombine combine = SweepCombine::grid;
   long replicates = 1;
 

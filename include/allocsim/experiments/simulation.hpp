@@ -16,9 +16,9 @@
 namespace allocsim {
 
 struct SimulationRequest {
-  int threads = 1;                 // worker threads; results are identical for any count
-  std::string tool_version = "";   // stored as the tool_version attribute
-  ProgressCallback progress;       // may be empty
+  int threads = 1;                // worker threads; results are identical for any count
+  std::string tool_version = "";  // stored as the tool_version attribute
+  ProgressCallback progress;      // may be empty
   // Files read besides the data files of the values, (label, path): the
   // output may not be one of them (e.g. {"--config", "exp.ini"}).
   std::vector<std::pair<std::string, std::string>> inputs;
@@ -26,7 +26,7 @@ struct SimulationRequest {
 
 struct SimulationReport {
   std::string output_file;
-  std::string run;                 // e.g. run-000000
+  std::string run;  // e.g. run-000000
   long agents = 0, partners = 0;
   RunResult result;
   // Why no coupling meets the budgets and capacities under the access mask

@@ -16,8 +16,8 @@
 
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
-#include "allocsim/results/results_file.hpp"
 #include "allocsim/experiments/sweep.hpp"
+#include "allocsim/results/results_file.hpp"
 
 namespace allocsim {
 
@@ -36,13 +36,14 @@ struct SweepOverrides {
 // the runs read. A resume or a rerun over a finished file is accepted only
 // for the same identity; comments, spacing and key order do not matter.
 struct SweepPlan {
-  std::string experiment_text;     // the file as given, then the command-line values (stored in the results)
-  ExperimentValues base;           // the values without the sweep
+  std::string
+      experiment_text;    // the file as given, then the command-line values (stored in the results)
+  ExperimentValues base;  // the values without the sweep
   SweepSection sweep;
   std::vector<SweepPoint> points;  // run k = points[k]
   std::vector<std::string> swept_keys;
-  std::string output_file;         // as given (messages)
-  std::string identity;            // the effective experiment, one "key = value" per line
+  std::string output_file;  // as given (messages)
+  std::string identity;     // the effective experiment, one "key = value" per line
   // Files the runs read, (label, path): the experiment and every data file.
   std::vector<std::pair<std::string, std::string>> inputs;
 
@@ -77,14 +78,14 @@ class RunDistributor {
 std::unique_ptr<RunDistributor> local_distributor(long count);
 
 struct SweepProgress {
-  long done = 0;       // runs finished in this invocation
-  long to_do = 0;      // runs this invocation set out to do
+  long done = 0;          // runs finished in this invocation
+  long to_do = 0;         // runs this invocation set out to do
   long already_done = 0;  // runs kept from an earlier invocation (to_do + already_done = all)
-  double seconds = 0;  // since the start
+  double seconds = 0;     // since the start
 };
 
 struct SweepRequest {
-  int threads = 1;                  // worker threads in this process; >= 1
+  int threads = 1;  // worker threads in this process; >= 1
   // Discard an unfinished sweep or a finished file of another experiment (only
   // files allocsim wrote: a results file by its format attribute, run parts).
   bool restart = false;
@@ -95,21 +96,21 @@ struct SweepRequest {
   // passes the same to-do list (computed by rank 0) and a shared distributor.
   std::function<std::unique_ptr<RunDistributor>(long count)> make_distributor;
   std::function<std::vector<long>(std::vector<long>)> share_to_do;  // identity without MPI
-  std::function<void()> barrier;                                      // no-op without MPI
-  bool merge_here = true;           // false on MPI ranks other than 0
+  std::function<void()> barrier;                                    // no-op without MPI
+  bool merge_here = true;  // false on MPI ranks other than 0
 };
 
 struct SweepReport {
   std::string output_file;
-  long total = 0;          // runs in the sweep
-  long already_done = 0;   // found finished from an earlier invocation
-  long ran = 0;            // finished now (by this process)
+  long total = 0;                     // runs in the sweep
+  long already_done = 0;              // found finished from an earlier invocation
+  long ran = 0;                       // finished now (by this process)
   std::vector<std::string> failures;  // "run-000012: message"
   bool interrupted = false;
-  bool complete = false;   // the results file was written (or is already there)
-  bool left_alone = false; // a finished file of the same experiment was already there
+  bool complete = false;    // the results file was written (or is already there)
+  bool left_alone = false;  // a finished file of the same experiment was already there
   double seconds = 0;
-  SummaryTable summary;    // when complete
+  SummaryTable summary;  // when complete
 
   std::string brief() const;
 };

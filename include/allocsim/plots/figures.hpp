@@ -34,16 +34,19 @@ namespace allocsim::plots {
 
 enum class ImageFormat { png, svg, pdf };
 
-std::string to_string(ImageFormat format);           // "png", "svg", "pdf"
-ImageFormat image_format_from_string(const std::string& text);  // throws InputError("--format", ...)
-std::string file_extension(ImageFormat format);      // without the dot
+std::string to_string(ImageFormat format);  // "png", "svg", "pdf"
+ImageFormat image_format_from_string(
+    const std::string& text);                    // throws InputError("--format", ...)
+std::string file_extension(ImageFormat format);  // without the dot
 
 struct FigureOptions {
   ImageFormat format = ImageFormat::png;  // png: pngcairo; svg: svg; pdf: pdfcairo
-  int width_pixels = 0;       // 0: the figure's own default (1000, or wider for side-by-side panels); PDF at 100 px per inch
-  int height_pixels = 0;      // 0: the figure's own default (700, or 600 for heatmaps)
+  int width_pixels = 0;   // 0: the figure's own default (1000, or wider for side-by-side panels);
+                          // PDF at 100 px per inch
+  int height_pixels = 0;  // 0: the figure's own default (700, or 600 for heatmaps)
   int font_size_points = 13;  // base font; titles are 2 points larger; in [6, 40]
-  bool script_only = false;   // write "<stem>.gp" (drawing to "<stem>.<format>") instead of running gnuplot
+  bool script_only =
+      false;  // write "<stem>.gp" (drawing to "<stem>.<format>") instead of running gnuplot
   std::string gnuplot_program;  // empty: the gnuplot found at build time, else "gnuplot" on PATH
 
   // Throws InputError naming the wrong field.
@@ -82,16 +85,18 @@ Ordering degree_ordering(const Matrix& values);
 
 struct HeatmapPanel {
   std::string title;  // e.g. "emergent allocation"
-  Matrix values;      // n x m, >= 0 (counts or shares; each panel is shown as shares of its own total)
+  Matrix values;  // n x m, >= 0 (counts or shares; each panel is shown as shares of its own total)
 };
 
 struct AllocationHeatmaps {
   std::string title;
-  std::vector<HeatmapPanel> panels;  // 1 to 4 panels of the same shape
-  Ordering ordering;                 // empty: degree_ordering(panels[0].values)
+  std::vector<HeatmapPanel> panels;      // 1 to 4 panels of the same shape
+  Ordering ordering;                     // empty: degree_ordering(panels[0].values)
   std::string ordering_name = "degree";  // named in the axis labels ("agents i, by degree")
-  std::vector<std::string> row_labels, column_labels;  // optional; drawn as tick labels up to 40 of them
-  bool log_colour_scale = true;  // log10 colours from smallest_share * max to max; smaller cells are white
+  std::vector<std::string> row_labels,
+      column_labels;  // optional; drawn as tick labels up to 40 of them
+  bool log_colour_scale =
+      true;  // log10 colours from smallest_share * max to max; smaller cells are white
   double smallest_share = 1e-4;  // in (0, 1); of the largest share over all panels
   std::string colour_label;      // empty: "share of all units ..."
   bool colour_bar = true;        // false: no colour bar (e.g. a 0/1 matrix drawn in one colour)
@@ -112,7 +117,7 @@ struct NullDistribution {
   std::string model;           // e.g. "curveball"
   std::vector<double> values;  // the metric on each null matrix (non-finite ones are left out)
   double observed = 0;
-  double z_score = 0;          // NaN when the null values do not vary
+  double z_score = 0;  // NaN when the null values do not vary
   double p_upper = 0, p_two_sided = 0;
 };
 
@@ -132,7 +137,7 @@ constexpr double kNoValue = std::numeric_limits<double>::quiet_NaN();
 struct Point {
   double x = 0;
   double y = 0;
-  double low = kNoValue;   // interval, NaN when none; high may be +inf (drawn to the top edge)
+  double low = kNoValue;  // interval, NaN when none; high may be +inf (drawn to the top edge)
   double high = kNoValue;
 };
 
@@ -150,8 +155,8 @@ struct NullBandPoint {
 // temperature, the null mean (dashed) and its 95% band (shaded).
 struct MetricAgainstTemperature {
   std::string title;
-  std::string metric_name;  // plain text, e.g. "NODF"; the y label
-  std::vector<Point> runs;  // x = choice temperature T (> 0), y = metric
+  std::string metric_name;               // plain text, e.g. "NODF"; the y label
+  std::vector<Point> runs;               // x = choice temperature T (> 0), y = metric
   std::vector<NullBandPoint> null_band;  // may be empty; several at one x are averaged
   std::string null_name = "null model";  // e.g. "fixed-marginal null"
 };
@@ -178,8 +183,8 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
 struct DistanceAgainstTemperature {
   std::string title;
   std::string distance_name = "KL divergence";  // plain text; the y label
-  std::vector<Point> to_entropic;  // x = T
-  std::vector<Point> to_exact;     // x = T
+  std::vector<Point> to_entropic;               // x = T
+  std::vector<Point> to_exact;                  // x = T
 };
 std::string draw_distance_against_temperature(const DistanceAgainstTemperature& figure,
                                               const std::string& stem,
@@ -190,11 +195,11 @@ std::string draw_distance_against_temperature(const DistanceAgainstTemperature& 
 // bottom panel the L1 marginal errors of each snapshot window (log y).
 struct Trajectories {
   std::string title;
-  std::vector<double> rounds;                // round at the end of each snapshot window, k values
-  std::vector<std::vector<double>> prices;   // per partner: k prices; may be empty
-  std::vector<std::string> partner_labels;   // optional; named in the legend up to 8 partners
-  std::vector<double> row_error;             // k values of ||P 1 - r||_1 (shares); may be empty
-  std::vector<double> column_error;          // k values of ||P^T 1 - c||_1 (shares); may be empty
+  std::vector<double> rounds;               // round at the end of each snapshot window, k values
+  std::vector<std::vector<double>> prices;  // per partner: k prices; may be empty
+  std::vector<std::string> partner_labels;  // optional; named in the legend up to 8 partners
+  std::vector<double> row_error;            // k values of ||P 1 - r||_1 (shares); may be empty
+  std::vector<double> column_error;         // k values of ||P^T 1 - c||_1 (shares); may be empty
 };
 std::string draw_trajectories(const Trajectories& figure, const std::string& stem,
                               const FigureOptions& options = {});
@@ -210,15 +215,15 @@ std::string draw_trajectories(const Trajectories& figure, const std::string& ste
 // cannot sit on log axes and are counted in a note. A band without
 // intervals is left out of its line.
 struct ScoredEstimate {
-  double true_epsilon = 0;       // > 0
-  double estimate = kNoValue;    // >= 0, may be +inf; NaN: unanswered
-  double units = kNoValue;       // NaN: not known (the units panel is then left empty)
-  std::string series;            // plain text
+  double true_epsilon = 0;     // > 0
+  double estimate = kNoValue;  // >= 0, may be +inf; NaN: unanswered
+  double units = kNoValue;     // NaN: not known (the units panel is then left empty)
+  std::string series;          // plain text
 };
 struct CoverageBand {
-  std::string axis;              // plain text, e.g. "true epsilon": one line per axis
-  int band = 0;                  // 1..5 (quintiles, low to high)
-  double coverage = kNoValue;    // in [0, 1]; NaN: no interval in the band
+  std::string axis;            // plain text, e.g. "true epsilon": one line per axis
+  int band = 0;                // 1..5 (quintiles, low to high)
+  double coverage = kNoValue;  // in [0, 1]; NaN: no interval in the band
   long intervals = 0;
 };
 struct EstimatorScoreCard {

@@ -45,7 +45,8 @@ class RunWriter {
   // <run>/scenario: gains, budgets, capacities, access when not full.
   void write_scenario(const TransportProblem& problem);
   // <run>/labels/agents and /partners (either may be empty: not written).
-  void write_labels(const std::vector<std::string>& agents, const std::vector<std::string>& partners);
+  void write_labels(const std::vector<std::string>& agents,
+                    const std::vector<std::string>& partners);
   // A numeric matrix at a path of layout.hpp, e.g. layout::kTotal (parents created).
   void write_matrix(const std::string& path, const Matrix& values);
   // Replaces <run>/analysis with the report: scalar metrics as attributes
@@ -86,7 +87,8 @@ class AllocationRecorder : public SnapshotSink {
 class ResultsFile {
  public:
   // Throws InputError naming `path` when its folder cannot be written.
-  ResultsFile(std::string path, const std::string& experiment_text, const std::string& tool_version);
+  ResultsFile(std::string path, const std::string& experiment_text,
+              const std::string& tool_version);
   ~ResultsFile();
   ResultsFile(const ResultsFile&) = delete;
   ResultsFile& operator=(const ResultsFile&) = delete;

@@ -32,9 +32,9 @@ class SnapshotSink {
 };
 
 struct RunResult {
-  Matrix total;             // n x m, flows summed over rounds burn_in+1 .. rounds
-  Matrix last_round;        // n x m, flows of the final round
-  Vector final_prices;      // m; empty for rules without prices
+  Matrix total;         // n x m, flows summed over rounds burn_in+1 .. rounds
+  Matrix last_round;    // n x m, flows of the final round
+  Vector final_prices;  // m; empty for rules without prices
   long rounds = 0;
   long snapshots = 0;
   long unplaced_units = 0;  // over all rounds (queue)

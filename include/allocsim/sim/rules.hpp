@@ -64,16 +64,16 @@ RuleKind rule_kind_from_string(const std::string& text);
 
 struct DynamicsOptions {
   RuleKind rule = RuleKind::price;
-  double temperature = 0.1;     // T, gain units; > 0
-  long rounds = 500;            // rounds to play; >= 1
-  long units = 10000;           // units spent per round by all agents together; >= 1
-  long burn_in = 100;           // rounds left out of the cumulative allocation; in [0, rounds)
-  long window = 50;             // rounds per snapshot; >= 1
-  double price_step = 0.5;      // eta of the price update; in [0, 1] (0 = fixed prices)
-  bool mean_field = false;      // expected flows, no sampling (price and gumbel only)
-  double learning_step = 0.1;   // alpha of learn; in (0, 1]
-  double reward_noise = 0.0;    // sigma of learn's rewards, gain units; >= 0
-  int threads = 1;              // worker threads; results are identical for any count; >= 1
+  double temperature = 0.1;    // T, gain units; > 0
+  long rounds = 500;           // rounds to play; >= 1
+  long units = 10000;          // units spent per round by all agents together; >= 1
+  long burn_in = 100;          // rounds left out of the cumulative allocation; in [0, rounds)
+  long window = 50;            // rounds per snapshot; >= 1
+  double price_step = 0.5;     // eta of the price update; in [0, 1] (0 = fixed prices)
+  bool mean_field = false;     // expected flows, no sampling (price and gumbel only)
+  double learning_step = 0.1;  // alpha of learn; in (0, 1]
+  double reward_noise = 0.0;   // sigma of learn's rewards, gain units; >= 0
+  int threads = 1;             // worker threads; results are identical for any count; >= 1
 
   // Throws InputError naming the wrong key (dynamics.<field>).
   void validate() const;

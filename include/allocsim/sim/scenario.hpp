@@ -59,25 +59,25 @@ AccessKind access_kind_from_string(const std::string& text,
                                    const std::string& where = "scenario.access");
 
 struct ScenarioOptions {
-  long agents = 20;                   // n, rows; >= 1
-  long partners = 30;                 // m, columns; >= 1
+  long agents = 20;    // n, rows; >= 1
+  long partners = 30;  // m, columns; >= 1
   GainsKind gains = GainsKind::trait_distance;
-  double gains_scale = 1.0;           // multiplies every generated gain; > 0
-  double gains_exponent = 2.0;        // p of trait-distance; > 0
-  long gains_rank = 2;                // k of features; >= 1
-  std::string gains_file;             // CSV for gains = file
+  double gains_scale = 1.0;     // multiplies every generated gain; > 0
+  double gains_exponent = 2.0;  // p of trait-distance; > 0
+  long gains_rank = 2;          // k of features; >= 1
+  std::string gains_file;       // CSV for gains = file
   MassKind budgets = MassKind::uniform;
-  double budgets_exponent = 1.0;      // zipf exponent; >= 0
-  double budgets_spread = 1.0;        // lognormal sigma; >= 0
+  double budgets_exponent = 1.0;  // zipf exponent; >= 0
+  double budgets_spread = 1.0;    // lognormal sigma; >= 0
   std::string budgets_file;
   MassKind capacities = MassKind::uniform;
   double capacities_exponent = 1.0;
   double capacities_spread = 1.0;
   std::string capacities_file;
   AccessKind access = AccessKind::full;
-  double access_density = 0.5;        // random access; in (0, 1]
+  double access_density = 0.5;  // random access; in (0, 1]
   std::string access_file;
-  std::uint64_t seed = 1;             // experiment seed
+  std::uint64_t seed = 1;  // experiment seed
 
   // Throws InputError naming the wrong key (scenario.<field>).
   void validate() const;
