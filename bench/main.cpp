@@ -41,7 +41,8 @@ const char* kUsage =
     "usage: allocsim_bench [--quick] [--json] [--only GROUP,...]\n"
     "  --quick   smoke run: small sizes and short caps (about half a minute)\n"
     "  --json    print one JSON object instead of the table\n"
-    "  --only    comma-separated groups: exact, entropic, iteration, simulation (machine always)\n";
+    "  --only    comma-separated groups: exact, entropic, iteration, simulation, python\n"
+    "            (machine always)\n";
 
 std::string self_path() {
   char buffer[4096];
@@ -125,6 +126,10 @@ int main(int argc, char** argv) {
     if (wanted("simulation")) {
       std::cerr << "allocsim_bench: simulation, sweeps, memory...\n";
       simulation_rows(settings, bandwidth, report);
+    }
+    if (wanted("python")) {
+      std::cerr << "allocsim_bench: the Python module vs C++ and numpy...\n";
+      python_module_rows(settings, report);
     }
   } catch (const std::exception& e) {
     std::cerr << "allocsim_bench: " << e.what() << "\n";
