@@ -118,3 +118,64 @@ def read_run(path, run=None):
 
 
 __all__ += ["read_results", "read_run"]
+
+
+def _key_text(value):
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, (list, tuple)):
+        return ", ".join(_key_text(v) for v in value)
+    return repr(value) if isinstance(value, float) else str(value)
+
+
+def _experiment_keys(experiment):
+    keys = []
+    for name, value in experiment.items():
+        if isinstance(value, dict):  # {"scenario": {"agents": 20}}
+            keys += [(f"{name}.{key}", _key_text(v)) for key, v in value.items()]
+        else:  # {"scenario.agents": 20}
+            keys.append((str(name), _key_text(value)))
+    return keys
+
+
+def simulate(experiment, *, threads=1):
+    """Plays one run of an experiment, as `allocsim simulate` does.
+
+    experiment: INI text (the contents of an experiment file), a dict of
+    experiment keys ({"scenario.agents": 20, "dynamics.temperature": 0.05}
+    or {"scenario": {"agents": 20}}, values as numbers, words, True/False
+    or lists), or a pathlib.Path to an experiment file. Keys left out take
+    their defaults (`allocsim run --list-keys`). threads: worker threads
+    (results do not depend on it).
+
+    Returns a Result with the run's arrays, bit-identical to the results
+    file `allocsim simulate` writes for the same keys: gains, budgets,
+    capacities, access (or None), snapshots (k x n x m, units per window),
+    round_end, total (units after burn-in), prices (k x m, or None), plus
+    parameters (every effective key, the seed), rounds, unplaced_units,
+    seconds, infeasibility (why no coupling meets the margins, or "").
+    An unknown key or a bad value raises ValueError naming it. Releases the GIL.
+    """
+    import os
+    import tempfile
+    with tempfile.TemporaryDirectory(prefix="allocsim-") as folder:
+        ini_path, keys = "", []
+        if isinstance(experiment, dict):
+            keys = _experiment_keys(experiment)
+        elif isinstance(experiment, str):
+            ini_path = os.path.join(folder, "experiment.ini")
+            with open(ini_path, "w") as out:
+                out.write(experiment)
+        elif isinstance(experiment, os.PathLike):
+            ini_path = os.fspath(experiment)
+        else:
+            raise TypeError("experiment: must be INI text, a dict of experiment keys or a path")
+        output = os.path.join(folder, "run.h5")
+        name = "experiment" if isinstance(experiment, str) else ini_path
+        summary = _core._simulate(ini_path, name, keys, output, threads)
+        run = _core._read_run(output, None)
+    run.update(summary)
+    return Result(run)
+
+
+__all__ += ["simulate"]

@@ -10,5 +10,6 @@ void register_temperature(pybind11::module_& module);  // estimate_temperature, 
 void register_structure(pybind11::module_& module);    // binarize, metrics, orderings
 void register_nulls(pybind11::module_& module);        // curveball, bicm, fixed_margins
 void register_results(pybind11::module_& module);      // reading results files
+void register_simulate(pybind11::module_& module);     // one simulation
 
 }  // namespace allocsim::python

@@ -26,4 +26,5 @@ PYBIND11_MODULE(_core, m) {
   allocsim::python::register_structure(m);
   allocsim::python::register_nulls(m);
   allocsim::python::register_results(m);
+  allocsim::python::register_simulate(m);
 }

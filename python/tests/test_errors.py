@@ -32,7 +32,7 @@ def with_nan(matrix):
     (lambda: allocsim.solve_exact(GAINS, None, CAPACITIES), "budgets"),
     (lambda: allocsim.estimate_temperature(with_nan(COUNTS), COUNT_GAINS), "allocation"),
     (lambda: allocsim.estimate_temperature(-COUNTS, COUNT_GAINS), "allocation"),
-    (lambda: allocsim.estimate_temperature(COUNTS, COUNT_GAINS[:3]), "gains"),
+    (lambda: allocsim.estimate_temperature(COUNTS, COUNT_GAINS[:3]), "allocation"),  # as the CLI
     (lambda: allocsim.estimate_temperature(COUNTS + 0.5, COUNT_GAINS, values="counts"), "values"),
     (lambda: allocsim.estimate_temperature(COUNTS, COUNT_GAINS, confidence=2), "confidence"),
     (lambda: allocsim.analyze(COUNTS, COUNT_GAINS, nulls="shuffle"), "nulls"),
