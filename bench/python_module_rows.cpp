@@ -25,13 +25,15 @@ void python_module_rows(const Settings& settings, Report& report) {
   write_instance(p, settings.workdir);
   EntropicOptions o;
   o.epsilon = 0.1 * gain_range(p);
-  const double cpp = best_time(3, [&] {
-                       for (long k = 0; k < calls; ++k) solve_entropic(p, o);
-                     }) / static_cast<double>(calls);
-  const PythonAnswer a = run_python({"overhead", settings.workdir, std::to_string(n),
-                                     std::to_string(n), format_number(o.epsilon, 17),
-                                     std::to_string(calls)},
-                                    script, ALLOCSIM_BENCH_MODULE_PATH);
+  const double cpp = best_time(3,
+                               [&] {
+                                 for (long k = 0; k < calls; ++k) solve_entropic(p, o);
+                               }) /
+                     static_cast<double>(calls);
+  const PythonAnswer a =
+      run_python({"overhead", settings.workdir, std::to_string(n), std::to_string(n),
+                  format_number(o.epsilon, 17), std::to_string(calls)},
+                 script, ALLOCSIM_BENCH_MODULE_PATH);
   Row overhead{"python", "allocsim.solve_entropic per call, n=m=10, eps=0.1 range vs the C++ call"};
   if (a.ok()) {
     const double python = a.number("seconds_per_call");
@@ -48,9 +50,9 @@ void python_module_rows(const Settings& settings, Report& report) {
   report.add(overhead);
 
   const long cases = settings.quick ? 10 : 100;
-  const PythonAnswer t = run_python({"temperature", std::to_string(cases), "30",
-                                     format_number(settings.python_budget * 4, 6)},
-                                    script, ALLOCSIM_BENCH_MODULE_PATH);
+  const PythonAnswer t = run_python(
+      {"temperature", std::to_string(cases), "30", format_number(settings.python_budget * 4, 6)},
+      script, ALLOCSIM_BENCH_MODULE_PATH);
   Row speed{"python", "allocsim.estimate_temperature, " + std::to_string(cases) +
                           " cases of 30x30 vs numpy log-domain estimator"};
   if (t.ok()) {
@@ -58,9 +60,10 @@ void python_module_rows(const Settings& settings, Report& report) {
     const double done = t.number("numpy_cases");
     const double numpy = done > 0 ? t.number("numpy_seconds") * cases / done : NAN;
     speed.ours = format_seconds(ours);
-    speed.reference = "numpy " + format_seconds(numpy) +
-                      (done < cases ? " (extrapolated from " + format_number(done) + " cases)" : "") +
-                      ", max rel. difference " + format_number(t.number("max_relative_difference"), 2);
+    speed.reference =
+        "numpy " + format_seconds(numpy) +
+        (done < cases ? " (extrapolated from " + format_number(done) + " cases)" : "") +
+        ", max rel. difference " + format_number(t.number("max_relative_difference"), 2);
     speed.ratio = numpy / ours;
     speed.verdict = speed.ratio >= kSpeedupTarget ? Verdict::met : Verdict::missed;
     speed.values.add("ours_seconds", ours).add("numpy_seconds", numpy);

@@ -35,6 +35,6 @@ print(table.to_string(index=False, float_format=lambda v: f"{v:.3g}"))
 # Which plants and pollinators lead the ordering (Fitness-Complexity on the links)?
 order = allocsim.fitness_complexity(visits)
 print("most generalist pollinators:", ", ".join(visits.index[order.row_order[:3]]))
-print("plants visited by the fewest specialists first:",
+print("plants visited only by the most generalist pollinators:",
       ", ".join(visits.columns[order.column_order[:3]]))
 assert table["null sd"].gt(0).all()

@@ -66,8 +66,7 @@ Matrix matrix_argument(const py::handle& value, const std::string& name) {
 
 Vector vector_argument(const py::handle& value, const std::string& name) {
   const DoubleArray array = numeric_array(value, name);
-  const bool column_or_row =
-      array.ndim() == 2 && (array.shape(0) == 1 || array.shape(1) == 1);
+  const bool column_or_row = array.ndim() == 2 && (array.shape(0) == 1 || array.shape(1) == 1);
   if (array.ndim() != 1 && !column_or_row)
     value_error(name, "must be a 1-D array, got shape " + shape_text(array));
   if (array.size() == 0) value_error(name, "is empty");
@@ -150,7 +149,8 @@ std::string register_function(py::module_& module, const FunctionSpec& spec) {
 
   std::ostringstream doc;
   doc << spec.summary << "\n\nParameters\n----------\n";
-  for (const auto& [name, meaning] : spec.arrays) doc << name << " : array_like\n    " << meaning << "\n";
+  for (const auto& [name, meaning] : spec.arrays)
+    doc << name << " : array_like\n    " << meaning << "\n";
   for (const OptionSpec& option : spec.options)
     doc << option.name << " : default " << python_repr(option.default_value) << "\n    "
         << option.meaning << "\n";

@@ -14,6 +14,7 @@
 
 #include <pybind11/numpy.h>
 #include <pybind11/pybind11.h>
+#include <pybind11/stl.h>  // std::vector and std::string to and from lists
 
 #include <optional>
 #include <string>
@@ -54,11 +55,11 @@ struct OptionSpec {
 
 struct FunctionSpec {
   std::string name;
-  std::string summary;                                     // first paragraph of the docstring
+  std::string summary;                                      // first paragraph of the docstring
   std::vector<std::pair<std::string, std::string>> arrays;  // positional arguments: name, meaning
-  std::vector<std::string> array_defaults;                 // defaults of the trailing arrays ("None")
+  std::vector<std::string> array_defaults;  // defaults of the trailing arrays ("None")
   std::vector<OptionSpec> options;
-  std::string returns;                                     // the Returns paragraph
+  std::string returns;  // the Returns paragraph
 };
 
 // Registers `spec` (for the docstring and the signature) and returns its docstring.

@@ -94,7 +94,8 @@ class SampleStore {
       : keep_(keep), binary_(binary), cell_count_(rows * columns) {
     if (!keep_) return;
     if (binary_)
-      array_ = py::array_t<std::uint8_t>({py::ssize_t(samples), py::ssize_t(rows), py::ssize_t(columns)});
+      array_ = py::array_t<std::uint8_t>(
+          {py::ssize_t(samples), py::ssize_t(rows), py::ssize_t(columns)});
     else
       array_ = py::array_t<double>({py::ssize_t(samples), py::ssize_t(rows), py::ssize_t(columns)});
     data_ = array_.mutable_data();
@@ -179,7 +180,8 @@ py::dict sample_nulls(NullModel model, const std::string& function, const py::ob
   d["binarize"] = describe(rule);
   py::dict by_metric;
   for (std::size_t q = 0; q < metrics.size(); ++q)
-    if (!metrics[q].name.empty()) by_metric[py::str(metrics[q].name)] = comparison_fields(comparisons[q]);
+    if (!metrics[q].name.empty())
+      by_metric[py::str(metrics[q].name)] = comparison_fields(comparisons[q]);
   d["comparisons"] = by_metric;
   if (model == NullModel::bicm) {
     BicmFit fit = fit_bicm(binarize(values, rule), nulls.bicm);
@@ -227,13 +229,16 @@ void register_nulls(py::module_& m) {
       "Curveball null model (Strona et al. 2014): binary matrices with exactly the degrees\n"
       "of the matrix binarised by the rule, as states of one chain spaced by `trades`\n"
       "trades. Releases the GIL (callable metrics take it back per sample).",
-      {{"matrix", "n x m, non-negative weights or 0/1 links"}}, {}, curveball,
+      {{"matrix", "n x m, non-negative weights or 0/1 links"}},
+      {},
+      curveball,
       kNullReturns};
-  m.def("curveball",
-        [](const py::object& matrix, const py::kwargs& kwargs) {
-          return sample_nulls(NullModel::curveball, "curveball", matrix, kwargs, {"nodf"});
-        },
-        register_function(m, curveball_spec).c_str(), py::arg("matrix"));
+  m.def(
+      "curveball",
+      [](const py::object& matrix, const py::kwargs& kwargs) {
+        return sample_nulls(NullModel::curveball, "curveball", matrix, kwargs, {"nodf"});
+      },
+      register_function(m, curveball_spec).c_str(), py::arg("matrix"));
 
   std::vector<OptionSpec> bicm = common_specs({"nodf"});
   bicm.push_back({"tolerance", py::float_(defaults.bicm.tolerance),
@@ -245,15 +250,18 @@ void register_nulls(py::module_& m) {
       "Bipartite configuration model (Saracco et al. 2015): independent links with\n"
       "p_ij = x_i y_j / (1 + x_i y_j) fitted so that expected degrees equal the observed\n"
       "ones. A fit that does not converge is fit_status 'not_converged', not an error.",
-      {{"matrix", "n x m, non-negative weights or 0/1 links"}}, {}, bicm,
+      {{"matrix", "n x m, non-negative weights or 0/1 links"}},
+      {},
+      bicm,
       std::string(kNullReturns) +
           "\nAlso the fit: fit_status, fit_message, probabilities (n x m), row_values,\n"
           "column_values, max_degree_error, fit_iterations."};
-  m.def("bicm",
-        [](const py::object& matrix, const py::kwargs& kwargs) {
-          return sample_nulls(NullModel::bicm, "bicm", matrix, kwargs, {"nodf"});
-        },
-        register_function(m, bicm_spec).c_str(), py::arg("matrix"));
+  m.def(
+      "bicm",
+      [](const py::object& matrix, const py::kwargs& kwargs) {
+        return sample_nulls(NullModel::bicm, "bicm", matrix, kwargs, {"nodf"});
+      },
+      register_function(m, bicm_spec).c_str(), py::arg("matrix"));
 
   std::vector<OptionSpec> fixed = common_specs({"nodf", "wnodf"});
   fixed.push_back({"share_units", py::int_(defaults.share_units),
@@ -263,13 +271,17 @@ void register_nulls(py::module_& m) {
       "Weighted null model keeping the margins: for counts, tables with exactly the\n"
       "observed row and column totals (Patefield 1981); for shares, multinomial tables of\n"
       "share_units units rescaled to the total. Metrics read the links by the rule.",
-      {{"matrix", "n x m, non-negative counts or shares"}}, {}, fixed, kNullReturns};
-  m.def("fixed_margins",
-        [](const py::object& matrix, const py::kwargs& kwargs) {
-          return sample_nulls(NullModel::fixed_margins, "fixed_margins", matrix, kwargs,
-                              {"nodf", "wnodf"});
-        },
-        register_function(m, fixed_spec).c_str(), py::arg("matrix"));
+      {{"matrix", "n x m, non-negative counts or shares"}},
+      {},
+      fixed,
+      kNullReturns};
+  m.def(
+      "fixed_margins",
+      [](const py::object& matrix, const py::kwargs& kwargs) {
+        return sample_nulls(NullModel::fixed_margins, "fixed_margins", matrix, kwargs,
+                            {"nodf", "wnodf"});
+      },
+      register_function(m, fixed_spec).c_str(), py::arg("matrix"));
 }
 
 }  // namespace allocsim::python

@@ -12,9 +12,12 @@ namespace {
 py::dict attributes_dict(const Attributes& attributes) {
   py::dict d;
   for (const auto& [name, value] : attributes) {
-    if (const auto* text = std::get_if<std::string>(&value)) d[py::str(name)] = *text;
-    else if (const auto* whole = std::get_if<long long>(&value)) d[py::str(name)] = *whole;
-    else d[py::str(name)] = std::get<double>(value);
+    if (const auto* text = std::get_if<std::string>(&value))
+      d[py::str(name)] = *text;
+    else if (const auto* whole = std::get_if<long long>(&value))
+      d[py::str(name)] = *whole;
+    else
+      d[py::str(name)] = std::get<double>(value);
   }
   return d;
 }
@@ -95,8 +98,9 @@ py::dict read_run_binding(const std::string& path, const py::object& run_argumen
                          ? py::object(to_array(reader.read_vector(run, "allocation/round_end")))
                          : py::object(py::none());
     d["total"] = to_array(reader.read_matrix(run, "allocation/total"));
-    d["prices"] = reader.has(run, "prices") ? py::object(to_array(reader.read_matrix(run, "prices")))
-                                            : py::object(py::none());
+    d["prices"] = reader.has(run, "prices")
+                      ? py::object(to_array(reader.read_matrix(run, "prices")))
+                      : py::object(py::none());
     d["analysis"] = attributes_dict(reader.group_attributes(run, "analysis"));
     return d;
   });

@@ -48,8 +48,8 @@ py::dict simulate_binding(const std::string& ini_path, const std::string& ini_na
 }  // namespace
 
 void register_simulate(py::module_& m) {
-  m.def("_simulate", &simulate_binding, py::arg("ini_path"), py::arg("ini_name"), py::arg("keys"), py::arg("output"),
-        py::arg("threads"));
+  m.def("_simulate", &simulate_binding, py::arg("ini_path"), py::arg("ini_name"), py::arg("keys"),
+        py::arg("output"), py::arg("threads"));
 }
 
 }  // namespace allocsim::python

@@ -5,9 +5,9 @@
 #include <cmath>
 
 #include "allocsim/analysis/binarize.hpp"
-#include "allocsim/core/error.hpp"
 #include "allocsim/analysis/nestedness.hpp"
 #include "allocsim/analysis/rankings.hpp"
+#include "allocsim/core/error.hpp"
 #include "arguments.hpp"
 #include "bindings.hpp"
 
@@ -156,8 +156,8 @@ py::dict gradient_order_binding(const py::object& matrix, const py::kwargs& kwar
   for (Eigen::Index i = 0; i < weights.rows(); ++i)
     for (Eigen::Index j = 0; j < weights.cols(); ++j)
       if (!(weights(i, j) >= 0) || !std::isfinite(weights(i, j)))
-        value_error("matrix", "row " + std::to_string(i + 1) + ", column " +
-                                  std::to_string(j + 1) + " is negative or not finite");
+        value_error("matrix", "row " + std::to_string(i + 1) + ", column " + std::to_string(j + 1) +
+                                  " is negative or not finite");
   GradientOrder r;
   {
     py::gil_scoped_release release;
@@ -188,32 +188,45 @@ void register_structure(py::module_& m) {
   const OptionSpec order{"order", py::str("by-degree"),
                          "by-degree (rows and columns by decreasing degree) | as-given"};
   define(m,
-         {"binarize", "The 0/1 links of a matrix by a stated rule.", {kMatrixArray}, {},
-          binarize_specs(), "numpy array of uint8, n x m."},
+         {"binarize",
+          "The 0/1 links of a matrix by a stated rule.",
+          {kMatrixArray},
+          {},
+          binarize_specs(),
+          "numpy array of uint8, n x m."},
          &binarize_binding);
   define(m,
-         {"connectance", "Links / (n m) of the matrix binarised by the rule.", {kMatrixArray}, {},
-          binarize_specs(), "float in [0, 1]."},
+         {"connectance",
+          "Links / (n m) of the matrix binarised by the rule.",
+          {kMatrixArray},
+          {},
+          binarize_specs(),
+          "float in [0, 1]."},
          &connectance_binding);
   define(m,
          {"nodf",
           "NODF (Almeida-Neto et al. 2008, Oikos 117:1227) of the matrix binarised by the rule:\n"
           "mean paired nestedness over row pairs, column pairs and all pairs, in [0, 100].",
-          {kMatrixArray}, {}, with_binarize({order}),
+          {kMatrixArray},
+          {},
+          with_binarize({order}),
           "Result: nodf (all pairs), nodf_rows, nodf_columns, binarize (the rule in words)."},
          &nodf_binding);
   define(m,
          {"wnodf",
           "WNODF (Almeida-Neto & Ulrich 2011) of the weights on the links the rule keeps, as\n"
           "`allocsim analyze` reports it; in [0, 100].",
-          {kMatrixArray}, {}, with_binarize({order}),
+          {kMatrixArray},
+          {},
+          with_binarize({order}),
           "Result: wnodf (all pairs), wnodf_rows, wnodf_columns, binarize."},
          &wnodf_binding);
   define(m,
          {"spectral_radius",
           "Largest singular value of the biadjacency matrix: of the links by the rule, or of\n"
           "the weights themselves with weighted=True.",
-          {kMatrixArray}, {},
+          {kMatrixArray},
+          {},
           with_binarize({{"weighted", py::bool_(false), "True: of the weights, not the links"}}),
           "float."},
          &spectral_radius_binding);
@@ -223,7 +236,8 @@ void register_structure(py::module_& m) {
           "Fitness-Complexity (Tacchella et al. 2012) of the links: row fitness, column\n"
           "complexity (mean 1 over rows or columns with links) and the orders they induce.\n"
           "Scores decaying to zero are status 'scores_decay', not an error.",
-          {kMatrixArray}, {},
+          {kMatrixArray},
+          {},
           with_binarize({{"tolerance", py::float_(fc.tolerance),
                           "relative change of the scores to stop at; in (0, 1)"},
                          {"max_iterations", py::int_(fc.max_iterations), "iterations; >= 1"},
@@ -236,7 +250,9 @@ void register_structure(py::module_& m) {
          {"eci",
           "Economic Complexity Index (Hidalgo & Hausmann 2009) of the links: rows (ECI) and\n"
           "columns (PCI), standardised, signed to correlate with the row degree.",
-          {kMatrixArray}, {}, binarize_specs(),
+          {kMatrixArray},
+          {},
+          binarize_specs(),
           "Result: status ('computed' | 'degenerate' | 'no_links'), message, row_index,\n"
           "column_index, row_order, column_order, second_eigenvalue, eigen_gap."},
          &eci_binding);
@@ -244,7 +260,9 @@ void register_structure(py::module_& m) {
          {"gradient_order",
           "Correspondence-analysis order of the weights (reciprocal averaging): rows and\n"
           "columns along the matrix's main gradient, as the heatmaps draw them.",
-          {kMatrixArray}, {}, {},
+          {kMatrixArray},
+          {},
+          {},
           "Result: row_order, column_order (indices), row_scores, column_scores."},
          &gradient_order_binding);
 }

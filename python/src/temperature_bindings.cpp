@@ -24,8 +24,9 @@ void apply_value_kind(const Options& options, ObservedAllocation& observed) {
   options.read("values", values);
   if (values == "counts") {
     if (!observed.counts)
-      value_error("values", "'counts' but the allocation holds numbers that are not whole; "
-                            "use values='shares', or units=N for shares of N units");
+      value_error("values",
+                  "'counts' but the allocation holds numbers that are not whole; "
+                  "use values='shares', or units=N for shares of N units");
   } else if (values == "shares") {
     observed.counts = false;
     observed.units = 0;
@@ -106,8 +107,7 @@ py::dict estimate_temperature_binding(const py::object& allocation, const py::ob
 std::vector<OptionSpec> temperature_specs() {
   const TemperatureOptions t;
   return {
-      {"values", py::str("auto"),
-       "'auto' (counts when every cell is whole), 'counts' or 'shares'"},
+      {"values", py::str("auto"), "'auto' (counts when every cell is whole), 'counts' or 'shares'"},
       {"units", py::none(), "N, the units the shares stand for (gives errors and intervals)"},
       {"confidence", py::float_(t.confidence), "level of the likelihood-ratio interval; in (0, 1)"},
       {"beta_tolerance", py::float_(t.beta_tolerance),
@@ -130,8 +130,9 @@ py::object analyze_binding(const py::object& allocation, const py::object& gains
   AllocationInput input;
   input.allocation = matrix_argument(allocation, "allocation");
   if (gains.is_none())
-    value_error("gains", "is required by this version of the analysis (structure alone: use "
-                         "nodf, wnodf, connectance, spectral_radius)");
+    value_error("gains",
+                "is required by this version of the analysis (structure alone: use "
+                "nodf, wnodf, connectance, spectral_radius)");
   input.gains = matrix_argument(gains, "gains");
   input.access = access_argument(access, "access");
   AllocationAnalysisOptions analysis;
@@ -211,8 +212,9 @@ py::dict fit_gains_binding(const py::object& allocation, const py::object& featu
   d["counts"] = observed.counts;
   d["units"] = observed.counts ? py::object(py::float_(observed.units)) : py::object(py::none());
   d["note"] = observed.note;
-  d["coupling"] = r.coupling.size() ? to_array(expand_to_input(r.coupling, observed, p.rows(), p.cols()))
-                                    : to_array(Matrix());
+  d["coupling"] = r.coupling.size()
+                      ? to_array(expand_to_input(r.coupling, observed, p.rows(), p.cols()))
+                      : to_array(Matrix());
   return d;
 }
 
@@ -228,7 +230,8 @@ void register_temperature(py::module_& m) {
       "(Fisher information) and a likelihood-ratio interval. All-zero rows and columns are\n"
       "left out (see note). Boundaries are statuses, not exceptions: 'at_optimum' (epsilon 0),\n"
       "'not_explained_by_noise' (epsilon inf), 'not_converged'. Releases the GIL.",
-      {kAllocationArray, {"gains", "n x m, gain per unit (gain units: epsilon is in them too)"},
+      {kAllocationArray,
+       {"gains", "n x m, gain per unit (gain units: epsilon is in them too)"},
        kAccessArray},
       {"None"},
       temperature_specs(),
@@ -279,7 +282,8 @@ void register_temperature(py::module_& m) {
        {"tolerance", py::float_(fit.tolerance),
         "stop when max_k |<F_k, pi> - <F_k, p>| / max|F_k| <= this; in (0, 1e-3]"},
        {"max_iterations", py::int_(fit.max_iterations), "Newton steps; >= 1"},
-       {"max_lambda", py::float_(fit.max_lambda), "|lambda_k| * max|F_k| above this diverges; > 0"}},
+       {"max_lambda", py::float_(fit.max_lambda),
+        "|lambda_k| * max|F_k| above this diverges; > 0"}},
       "Result: status ('converged' | 'not_converged'), message, names, theta_over_epsilon\n"
       "(one per feature), standard_errors and covariance (nan without counts), moment_error,\n"
       "iterations, counts, units, note, coupling (n x m shares at the fit)."};

@@ -133,7 +133,8 @@ py::dict solve_entropic_binding(const py::object& gains, const py::object& budge
 
 const char* const kSolveReturns =
     "Result with the fields of `allocsim solve --json`: status (word), message, method,\n"
-    "total_gain (gain units), iterations, marginal_error ((|pi 1 - r|_1 + |pi^T 1 - c|_1) / sum r),\n"
+    "total_gain (gain units), iterations, marginal_error ((|pi 1 - r|_1 + |pi^T 1 - c|_1) / sum "
+    "r),\n"
     "support_size, is_forest, epsilon, seconds; and the arrays coupling (n x m),\n"
     "agent_potential (n) and partner_potential (m), the dual potentials.";
 
@@ -156,7 +157,8 @@ void register_transport(py::module_& m) {
           " status: 'optimal' | 'infeasible'. iterations is 0 and\n"
           "epsilon None, as in the JSON."};
   m.def("solve_exact", &solve_exact_binding, register_function(m, exact_spec).c_str(),
-        py::arg("gains"), py::arg("budgets"), py::arg("capacities"), py::arg("access") = py::none());
+        py::arg("gains"), py::arg("budgets"), py::arg("capacities"),
+        py::arg("access") = py::none());
 
   const EntropicOptions entropic;
   FunctionSpec entropic_spec{
@@ -173,12 +175,10 @@ void register_transport(py::module_& m) {
         "epsilon as a share of the gain range (max - min gain); instead of epsilon"},
        {"tolerance", py::float_(entropic.tolerance),
         "relative L1 marginal violation to stop at; in (0, 1)"},
-       {"max_iterations", py::int_(entropic.max_iterations),
-        "Sinkhorn sweeps in all stages; >= 1"},
+       {"max_iterations", py::int_(entropic.max_iterations), "Sinkhorn sweeps in all stages; >= 1"},
        {"epsilon_shrink", py::float_(entropic.epsilon_shrink),
         "factor between epsilon-scaling stages; in (0, 1)"},
-       {"epsilon_scaling", py::bool_(entropic.epsilon_scaling),
-        "False: start directly at epsilon"},
+       {"epsilon_scaling", py::bool_(entropic.epsilon_scaling), "False: start directly at epsilon"},
        {"absorb_threshold", py::float_(entropic.absorb_threshold),
         "absorb the scalings into the potentials when one leaves [1/t, t]; > 1"},
        {"threads", py::int_(entropic.threads),
@@ -189,7 +189,8 @@ void register_transport(py::module_& m) {
           "Also entropy, primal_value, dual_value, stages, log_domain_updates;\n"
           "coupling_ij = exp((gains_ij + agent_potential_i + partner_potential_j) / epsilon)."};
   m.def("solve_entropic", &solve_entropic_binding, register_function(m, entropic_spec).c_str(),
-        py::arg("gains"), py::arg("budgets"), py::arg("capacities"), py::arg("access") = py::none());
+        py::arg("gains"), py::arg("budgets"), py::arg("capacities"),
+        py::arg("access") = py::none());
 }
 
 }  // namespace allocsim::python

@@ -61,10 +61,12 @@ def test_an_option_of_the_wrong_type_is_a_type_error():
 
 def test_the_message_is_the_command_lines(cli, tmp_path):
     from conftest import write_csv
-    done = cli("solve", "--gains", write_csv(tmp_path / "g.csv", with_nan(GAINS)), "--budgets",
-               write_csv(tmp_path / "r.csv", BUDGETS), "--capacities",
+    budgets = BUDGETS.copy()
+    budgets[2] = -1
+    done = cli("solve", "--gains", write_csv(tmp_path / "g.csv", GAINS), "--budgets",
+               write_csv(tmp_path / "r.csv", budgets), "--capacities",
                write_csv(tmp_path / "c.csv", CAPACITIES), expect_ok=False)
     with pytest.raises(ValueError) as error:
-        allocsim.solve_exact(with_nan(GAINS), BUDGETS, CAPACITIES)
+        allocsim.solve_exact(GAINS, budgets, CAPACITIES)
     what = str(error.value).split(": ", 1)[1]
     assert done.returncode == 2 and what in done.stderr

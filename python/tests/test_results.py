@@ -44,11 +44,11 @@ def test_simulate_from_ini_text_is_bit_identical_to_the_command_line(cli_run):
 def test_simulate_from_a_dict_is_bit_identical_to_the_command_line(cli, tmp_path):
     keys = {"scenario": {"agents": 6, "partners": 5, "gains": "random", "seed": 4},
             "dynamics.rule": "gumbel", "dynamics.temperature": 0.1, "dynamics.rounds": 30,
-            "dynamics.window": 10}
+            "dynamics.window": 10, "dynamics.burn_in": 10}
     path = tmp_path / "cli.h5"
     cli("simulate", "--scenario.agents", 6, "--scenario.partners", 5, "--scenario.gains", "random",
         "--scenario.seed", 4, "--dynamics.rule", "gumbel", "--dynamics.temperature", 0.1,
-        "--dynamics.rounds", 30, "--dynamics.window", 10, "--out", path, "--quiet")
+        "--dynamics.rounds", 30, "--dynamics.window", 10, "--dynamics.burn_in", 10, "--out", path, "--quiet")
     assert_same_run(allocsim.simulate(keys, threads=2), path)
 
 
