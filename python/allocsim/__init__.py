@@ -110,8 +110,9 @@ def read_run(path, run=None):
     seed, status), gains (n x m), budgets (n), capacities (m), access (n x m
     uint8, or None when every pair is allowed), snapshots (k x n x m, units
     per window), round_end (k, the last round of each window), total (n x m,
-    units after burn-in), prices (k x m, or None for rules without prices)
-    and analysis (the attributes `allocsim analyze --write` stored).
+    units after burn-in), prices (k x m, or None for rules without prices),
+    agent_labels and partner_labels (field matrices; None when absent) and
+    analysis (the attributes `allocsim analyze --write` stored).
     """
     import os
     return Result(_core._read_run(os.fspath(path), run))

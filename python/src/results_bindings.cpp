@@ -2,6 +2,7 @@
 // home of the file layout): the summary table, the runs, and one run's
 // scenario, snapshots, total, prices and analysis.
 #include "allocsim/core/error.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "arguments.hpp"
 #include "bindings.hpp"
@@ -94,14 +95,18 @@ py::dict read_run_binding(const std::string& path, const py::object& run_argumen
                 snapshots.mutable_data() + k * n * m);
     }
     d["snapshots"] = snapshots;
-    d["round_end"] = reader.has(run, "allocation/round_end")
-                         ? py::object(to_array(reader.read_vector(run, "allocation/round_end")))
+    d["round_end"] = reader.has(run, layout::kRoundEnd)
+                         ? py::object(to_array(reader.read_vector(run, layout::kRoundEnd)))
                          : py::object(py::none());
-    d["total"] = to_array(reader.read_matrix(run, "allocation/total"));
-    d["prices"] = reader.has(run, "prices")
-                      ? py::object(to_array(reader.read_matrix(run, "prices")))
+    d["total"] = to_array(reader.read_matrix(run, layout::kTotal));
+    d["prices"] = reader.has(run, layout::kPrices)
+                      ? py::object(to_array(reader.read_matrix(run, layout::kPrices)))
                       : py::object(py::none());
-    d["analysis"] = attributes_dict(reader.group_attributes(run, "analysis"));
+    const std::vector<std::string> agents = reader.read_texts(run, layout::kAgentLabels);
+    const std::vector<std::string> partners = reader.read_texts(run, layout::kPartnerLabels);
+    d["agent_labels"] = agents.empty() ? py::object(py::none()) : py::cast(agents);
+    d["partner_labels"] = partners.empty() ? py::object(py::none()) : py::cast(partners);
+    d["analysis"] = attributes_dict(reader.group_attributes(run, layout::kAnalysis));
     return d;
   });
 }
