@@ -34,7 +34,9 @@ void python_module_rows(const Settings& settings, Report& report) {
       run_python({"overhead", settings.workdir, std::to_string(n), std::to_string(n),
                   format_number(o.epsilon, 17), std::to_string(calls)},
                  script, ALLOCSIM_BENCH_MODULE_PATH);
-  Row overhead{"python", "allocsim.solve_entropic per call, n=m=10, eps=0.1 range vs the C++ call"};
+  Row overhead;
+  overhead.group = "python";
+  overhead.name = "allocsim.solve_entropic per call, n=m=10, eps=0.1 range vs the C++ call";
   if (a.ok()) {
     const double python = a.number("seconds_per_call");
     overhead.ours = format_seconds(python) + " (" + format_seconds(python - cpp) + " above)";
@@ -53,8 +55,10 @@ void python_module_rows(const Settings& settings, Report& report) {
   const PythonAnswer t = run_python(
       {"temperature", std::to_string(cases), "30", format_number(settings.python_budget * 4, 6)},
       script, ALLOCSIM_BENCH_MODULE_PATH);
-  Row speed{"python", "allocsim.estimate_temperature, " + std::to_string(cases) +
-                          " cases of 30x30 vs numpy log-domain estimator"};
+  Row speed;
+  speed.group = "python";
+  speed.name = "allocsim.estimate_temperature, " + std::to_string(cases) +
+                          " cases of 30x30 vs numpy log-domain estimator";
   if (t.ok()) {
     const double ours = t.number("ours_seconds");
     const double done = t.number("numpy_cases");
