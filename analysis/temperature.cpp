@@ -61,30 +61,29 @@ class Profile {
       return point;
     }
     const TransportProblem& problem = observed_.problem;
-    MarginalFit fit = match_marginals(point.beta * problem.gains, allowed_, problem.budgets,
-                                      problem.capacities, point.beta * start.agent,
-                                      point.beta * start.partner, options_.sinkhorn_tolerance,
-                                      kMaxNewtonSteps);
+    MarginalFit fit =
+        match_marginals(point.beta * problem.gains, allowed_, problem.budgets, problem.capacities,
+                        point.beta * start.agent, point.beta * start.partner,
+                        options_.sinkhorn_tolerance, kMaxNewtonSteps);
     if (!fit.converged) {
       DualPotentials solved;
       if (!sinkhorn(point.beta, &start, warm ? std::exp(-warm->u) : 0.0,
                     options_.sinkhorn_tolerance, options_.max_sinkhorn_iterations, solved,
                     point.message))
         return point;
-      fit = match_marginals(point.beta * problem.gains, allowed_, problem.budgets,
-                            problem.capacities, point.beta * solved.agent,
-                            point.beta * solved.partner, options_.sinkhorn_tolerance,
-                            kMaxNewtonSteps);
+      fit =
+          match_marginals(point.beta * problem.gains, allowed_, problem.budgets, problem.capacities,
+                          point.beta * solved.agent, point.beta * solved.partner,
+                          options_.sinkhorn_tolerance, kMaxNewtonSteps);
       if (!fit.converged) {
-        point.message = "the marginals could not be matched at epsilon " +
-                        std::to_string(1.0 / point.beta);
+        point.message =
+            "the marginals could not be matched at epsilon " + std::to_string(1.0 / point.beta);
         return point;
       }
     }
     point.gain = problem.gains.cwiseProduct(fit.coupling).sum();
     point.loglik = point.beta * problem.gains.cwiseProduct(observed_.shares).sum() +
-                   fit.row_effect.dot(problem.budgets) +
-                   fit.column_effect.dot(problem.capacities);
+                   fit.row_effect.dot(problem.budgets) + fit.column_effect.dot(problem.capacities);
     point.variance = conditional_variance(problem.gains, fit.coupling);
     point.coupling = std::move(fit.coupling);
     point.ok = true;
@@ -145,8 +144,8 @@ struct RootOutcome {
 };
 
 template <class Function>
-RootOutcome find_root(Function f, double u, double lo, double hi, bool increasing,
-                      double tolerance, Profile& profile) {
+RootOutcome find_root(Function f, double u, double lo, double hi, bool increasing, double tolerance,
+                      Profile& profile) {
   RootOutcome out;
   for (out.steps = 0; out.steps < kMaxRootSteps && profile.budget_left(); ++out.steps) {
     const RootValue v = f(u);
@@ -157,8 +156,10 @@ RootOutcome find_root(Function f, double u, double lo, double hi, bool increasin
     double next = u - v.value / v.slope;
     next = std::clamp(next, u - kMaxStepInLogBeta, u + kMaxStepInLogBeta);
     if (!std::isfinite(next) || next <= lo || next >= hi || (root_above != (next > u))) {
-      if (std::isfinite(lo) && std::isfinite(hi)) next = 0.5 * (lo + hi);
-      else next = root_above ? u + kMaxStepInLogBeta : u - kMaxStepInLogBeta;
+      if (std::isfinite(lo) && std::isfinite(hi))
+        next = 0.5 * (lo + hi);
+      else
+        next = root_above ? u + kMaxStepInLogBeta : u - kMaxStepInLogBeta;
     }
     if (std::abs(next - u) < tolerance || (hi - lo) < tolerance) return {next, out.steps + 1, true};
     u = next;
@@ -209,8 +210,8 @@ Interval likelihood_interval(const ObservedAllocation& o, const TemperatureOptio
     return v;
   };
   const double upper_start = std::log(best.beta + z * se_beta);
-  const RootOutcome high = find_root(drop, upper_start, best.u, kInf, true,
-                                     options.beta_tolerance * 10, profile);
+  const RootOutcome high =
+      find_root(drop, upper_start, best.u, kInf, true, options.beta_tolerance * 10, profile);
   if (!high.ok) {
     interval.message = "the upper end of the interval in beta was not found";
     return interval;
@@ -221,8 +222,8 @@ Interval likelihood_interval(const ObservedAllocation& o, const TemperatureOptio
   } else {
     const double guess = best.beta - z * se_beta;
     const double lower_start = std::log(guess > 0 ? guess : best.beta / 4);
-    const RootOutcome low = find_root(drop, lower_start, -kInf, best.u, false,
-                                      options.beta_tolerance * 10, profile);
+    const RootOutcome low =
+        find_root(drop, lower_start, -kInf, best.u, false, options.beta_tolerance * 10, profile);
     if (!low.ok) {
       interval.message = "the lower end of the interval in beta was not found";
       return interval;
@@ -241,6 +242,138 @@ void set_boundary(TemperatureResult& result, TemperatureStatus status, const std
   result.beta = optimum ? kInf : 0.0;
 }
 
+// Per-unit log-likelihood sum p log pi computed from the coupling (no
+// cancellation at large beta); -inf when pi is 0 where p is not.
+double direct_loglik(const Matrix& shares, const Matrix& coupling) {
+  double l = 0;
+  for (Eigen::Index k = 0; k < shares.size(); ++k)
+    if (shares.data()[k] > 0) {
+      if (!(coupling.data()[k] > 0)) return -kInf;
+      l += shares.data()[k] * std::log(coupling.data()[k]);
+    }
+  return l;
+}
+
+// At the optimum the profile likelihood rises with beta towards its supremum
+// l(infinity); the bound is the beta where it is chi2_1(confidence)/(2N)
+// below that: epsilon in [0, 1/beta_low].
+void bound_at_optimum(const ObservedAllocation& o, const TemperatureOptions& options,
+                      const MarginalFit& flat, double span, TemperatureResult& result) {
+  const double target = chi_square_1_quantile(options.confidence) / (2.0 * o.units);
+  Profile profile(o, options);
+  const double observed = o.observed_gain();
+  // Ladder of beta (factor e per rung) up to the supremum of the profile.
+  std::vector<ProfilePoint> ladder;
+  double supremum = -kInf;
+  for (double u = std::log(1.0 / span) - 3; ladder.size() < 80 && profile.budget_left(); u += 1) {
+    ProfilePoint p = profile.at(u);
+    if (!p.ok) break;
+    p.loglik = direct_loglik(o.shares, p.coupling);
+    const double rise = p.loglik - supremum;
+    supremum = std::max(supremum, p.loglik);
+    ladder.push_back(std::move(p));
+    if (ladder.size() > 3 && rise < 1e-6 * target) break;
+  }
+  result.solves += profile.solves();
+  if (ladder.empty() || !std::isfinite(supremum)) {
+    result.message += "; the one-sided bound could not be computed";
+    return;
+  }
+  result.ci_low = 0;
+  const double flat_loglik = direct_loglik(o.shares, flat.coupling);
+  if (flat_loglik >= supremum - target) {
+    result.ci_high = kInf;  // even partners chosen regardless of gain are within reach
+    return;
+  }
+  std::size_t above = 0;
+  while (above < ladder.size() && ladder[above].loglik < supremum - target) ++above;
+  const double lo = above > 0 ? ladder[above - 1].u : -kInf;
+  const double hi = above < ladder.size() ? ladder[above].u : kInf;
+  auto drop = [&](double u) {
+    ProfilePoint p = profile.at(u);
+    RootValue v;
+    v.ok = p.ok;
+    if (!p.ok) return v;
+    v.value = supremum - direct_loglik(o.shares, p.coupling) - target;
+    v.slope = -p.beta * (observed - p.gain);
+    return v;
+  };
+  const long before = profile.solves();
+  const double start = std::isfinite(hi) ? hi : lo;
+  const RootOutcome root =
+      find_root(drop, start, lo, hi, false, options.beta_tolerance * 10, profile);
+  result.solves += profile.solves() - before;
+  if (!root.ok) {
+    result.ci_low = kNaN;
+    result.message += "; the one-sided bound could not be computed";
+    return;
+  }
+  result.ci_high = std::exp(-root.u);
+}
+
+// Without signal (observed gain at or below the independent coupling's) the
+// profile likelihood falls from beta = 0; the bound is the beta where it has
+// fallen by chi2_1(confidence)/(2N): epsilon in [1/beta_up, infinity).
+void bound_without_signal(const ObservedAllocation& o, const TemperatureOptions& options,
+                          const MarginalFit& flat, TemperatureResult& result) {
+  const double target = chi_square_1_quantile(options.confidence) / (2.0 * o.units);
+  const double flat_loglik = direct_loglik(o.shares, flat.coupling);
+  const double observed = o.observed_gain();
+  Profile profile(o, options);
+  auto drop = [&](double u) {
+    ProfilePoint p = profile.at(u);
+    RootValue v;
+    v.ok = p.ok;
+    if (!p.ok) return v;
+    v.value = flat_loglik - direct_loglik(o.shares, p.coupling) - target;
+    v.slope = p.beta * (p.gain - observed);
+    return v;
+  };
+  const double v0 = conditional_variance(o.problem.gains, flat.coupling);
+  const RootOutcome root = find_root(drop, std::log(std::sqrt(2 * target / v0)), -kInf, kInf, true,
+                                     options.beta_tolerance * 10, profile);
+  result.solves += profile.solves();
+  if (!root.ok) {
+    result.message += "; the one-sided bound could not be computed";
+    return;
+  }
+  result.ci_low = std::exp(-root.u);
+  result.ci_high = kInf;
+}
+
+// A power of two near the largest |gain| on the allowed cells, so that
+// dividing by it is exact; InputError when the gains are subnormal.
+double gains_scale(const ObservedAllocation& o) {
+  double largest = 0;
+  for (Eigen::Index k = 0; k < o.problem.gains.size(); ++k)
+    if (!o.problem.access || o.problem.access->data()[k] != 0)
+      largest = std::max(largest, std::abs(o.problem.gains.data()[k]));
+  if (largest < std::numeric_limits<double>::min())
+    throw InputError(o.sources.gains,
+                     "the gains are below 2.2e-308, the smallest normal double, where their "
+                     "ratios lose precision; multiply them by a constant (epsilon scales with "
+                     "them)");
+  return std::ldexp(1.0, std::ilogb(largest));
+}
+
+// Multiplies every gain-unit figure by `scale`; false when one that was
+// finite and non-zero leaves the range of normal doubles.
+bool rescale(TemperatureResult& r, double scale) {
+  bool representable = true;
+  auto times = [&](double& x, double factor) {
+    const bool was_normal = std::isfinite(x) && x != 0;
+    x *= factor;
+    if (was_normal && !(std::isfinite(x) && std::abs(x) >= std::numeric_limits<double>::min()))
+      representable = false;
+  };
+  for (double* x : {&r.epsilon, &r.standard_error, &r.ci_low, &r.ci_high, &r.observed_gain,
+                    &r.fitted_gain, &r.optimum_gain, &r.independent_gain})
+    times(*x, scale);
+  times(r.beta, 1.0 / scale);
+  r.conditional_variance *= scale * scale;  // may overflow at extreme scales; informative only
+  return representable;
+}
+
 }  // namespace
 
 void TemperatureOptions::validate() const {
@@ -249,7 +382,8 @@ void TemperatureOptions::validate() const {
     throw InputError("beta_tolerance", "must be in (0, 1e-3]");
   if (!(sinkhorn_tolerance > 0 && sinkhorn_tolerance <= 1e-6))
     throw InputError("sinkhorn_tolerance", "must be in (0, 1e-6]");
-  if (max_sinkhorn_iterations < 1) throw InputError("max_sinkhorn_iterations", "must be at least 1");
+  if (max_sinkhorn_iterations < 1)
+    throw InputError("max_sinkhorn_iterations", "must be at least 1");
   if (max_solves < 10) throw InputError("max_solves", "must be at least 10");
   if (!(boundary_tolerance >= 0 && boundary_tolerance <= 0.01))
     throw InputError("boundary_tolerance", "must be in [0, 0.01]");
@@ -257,10 +391,14 @@ void TemperatureOptions::validate() const {
 
 std::string to_string(TemperatureStatus status) {
   switch (status) {
-    case TemperatureStatus::estimated: return "estimated";
-    case TemperatureStatus::at_optimum: return "at_optimum";
-    case TemperatureStatus::not_explained_by_noise: return "not_explained_by_noise";
-    case TemperatureStatus::not_converged: return "not_converged";
+    case TemperatureStatus::estimated:
+      return "estimated";
+    case TemperatureStatus::at_optimum:
+      return "at_optimum";
+    case TemperatureStatus::not_explained_by_noise:
+      return "not_explained_by_noise";
+    case TemperatureStatus::not_converged:
+      return "not_converged";
   }
   return "unknown";
 }
@@ -294,10 +432,11 @@ void require_informative_gains(const TransportProblem& problem, const std::strin
   }
 }
 
-TemperatureResult estimate_temperature(const ObservedAllocation& o,
-                                       const TemperatureOptions& options) {
-  options.validate();
-  require_informative_gains(o.problem, o.sources.gains);
+namespace {
+
+// The estimate for gains of order one (estimate_temperature rescales).
+TemperatureResult estimate_at_unit_scale(const ObservedAllocation& o,
+                                         const TemperatureOptions& options) {
   TemperatureResult result;
   result.confidence = options.confidence;
   result.units = o.units;
@@ -308,8 +447,9 @@ TemperatureResult estimate_temperature(const ObservedAllocation& o,
   const MarginalFit flat = independent_coupling(o.problem, options.sinkhorn_tolerance);
   result.solves = 1;
   if (!exact.optimal() || !flat.converged) {
-    result.message = "the reference couplings could not be solved: " +
-                     (exact.optimal() ? "the independent coupling did not converge" : exact.message);
+    result.message =
+        "the reference couplings could not be solved: " +
+        (exact.optimal() ? "the independent coupling did not converge" : exact.message);
     return result;
   }
   result.optimum_gain = exact.total_gain;
@@ -321,6 +461,7 @@ TemperatureResult estimate_temperature(const ObservedAllocation& o,
                  "the observed gain reaches the exact optimum's: epsilon 0");
     result.fitted_gain = result.optimum_gain;
     result.coupling = exact.coupling;
+    if (o.units > 0 && options.interval) bound_at_optimum(o, options, flat, span, result);
     return result;
   }
   if (result.observed_gain <= result.independent_gain + slack) {
@@ -329,6 +470,7 @@ TemperatureResult estimate_temperature(const ObservedAllocation& o,
                  "(partners chosen regardless of gain), so no positive temperature "
                  "explains it");
     result.fitted_gain = result.independent_gain;
+    if (o.units > 0 && options.interval) bound_without_signal(o, options, flat, result);
     return result;
   }
 
@@ -360,8 +502,10 @@ TemperatureResult estimate_temperature(const ObservedAllocation& o,
   if (o.units > 0) {
     result.standard_error = 1.0 / (best.beta * best.beta * std::sqrt(o.units * best.variance));
     if (options.interval) {
-      const double flat_loglik = o.shares.cwiseProduct(
-          flat.coupling.unaryExpr([](double x) { return x > 0 ? std::log(x) : 0.0; })).sum();
+      const double flat_loglik = o.shares
+                                     .cwiseProduct(flat.coupling.unaryExpr(
+                                         [](double x) { return x > 0 ? std::log(x) : 0.0; }))
+                                     .sum();
       const long before = profile.solves();
       const Interval interval = likelihood_interval(o, options, best, flat_loglik, profile);
       result.solves += profile.solves() - before;
@@ -376,6 +520,24 @@ TemperatureResult estimate_temperature(const ObservedAllocation& o,
   return result;
 }
 
+}  // namespace
+
+TemperatureResult estimate_temperature(const ObservedAllocation& o,
+                                       const TemperatureOptions& options) {
+  options.validate();
+  const double scale = gains_scale(o);
+  ObservedAllocation unit = o;
+  unit.problem.gains /= scale;
+  require_informative_gains(unit.problem, o.sources.gains);
+  TemperatureResult result = estimate_at_unit_scale(unit, options);
+  if (!rescale(result, scale))
+    throw InputError(o.sources.gains,
+                     "epsilon or its interval leaves the range of double precision at the scale "
+                     "of these gains; multiply or divide the gains by a constant (epsilon "
+                     "scales with them)");
+  return result;
+}
+
 std::string TemperatureResult::brief() const {
   std::ostringstream out;
   out.precision(4);
@@ -385,10 +547,16 @@ std::string TemperatureResult::brief() const {
       if (std::isfinite(standard_error)) out << " (se " << standard_error;
       if (std::isfinite(ci_low)) {
         out << "; " << 100 * confidence << "% interval " << ci_low << " to ";
-        if (std::isfinite(ci_high)) out << ci_high; else out << "infinity";
+        if (std::isfinite(ci_high))
+          out << ci_high;
+        else
+          out << "infinity";
       }
       if (std::isfinite(standard_error)) out << ")";
-      if (units > 0) out << ", N = " << units; else out << ", shares (no unit count: no interval)";
+      if (units > 0)
+        out << ", N = " << units;
+      else
+        out << ", shares (no unit count: no interval)";
       return out.str();
     case TemperatureStatus::at_optimum:
       return "epsilon 0: the allocation reaches the exact optimum's gain";

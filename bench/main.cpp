@@ -41,7 +41,7 @@ const char* kUsage =
     "usage: allocsim_bench [--quick] [--json] [--only GROUP,...]\n"
     "  --quick   smoke run: small sizes and short caps (about half a minute)\n"
     "  --json    print one JSON object instead of the table\n"
-    "  --only    comma-separated groups: exact, entropic, iteration, simulation, python\n"
+    "  --only    comma-separated groups: exact, entropic, iteration, simulation, csv, python\n"
     "            (machine always)\n";
 
 std::string self_path() {
@@ -127,6 +127,10 @@ int main(int argc, char** argv) {
       std::cerr << "allocsim_bench: simulation, sweeps, memory...\n";
       simulation_rows(settings, bandwidth, report);
     }
+    if (wanted("csv")) {
+      std::cerr << "allocsim_bench: CSV reading and writing, whole solve process...\n";
+      csv_rows(settings, report);
+    }
     if (wanted("python")) {
       std::cerr << "allocsim_bench: the Python module vs C++ and numpy...\n";
       python_module_rows(settings, report);
@@ -157,7 +161,8 @@ int main(int argc, char** argv) {
   report.note("numpy " + info.word("numpy") +
               " with OPENBLAS_NUM_THREADS=1 (OPENBLAS_CORETYPE, OPENBLAS_L2_SIZE unset for it); "
               "ratios are baseline time / our time, except 'vs bare LEMON' and the rows with a "
-              "bound (bound / our time) and the memory row (long / short)");
+              "bound (bound / our time), the memory row (long / short), the CSV speed rows (our speed / "
+              "target speed) and the whole-process row (process / solve alone)");
   std::cout << (json ? report.json() + "\n" : report.table());
   return code;
 }

@@ -16,6 +16,7 @@
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
+#include "gains_reconstruction_output.hpp"
 #include "options.hpp"
 
 namespace allocsim::cli {
@@ -143,6 +144,7 @@ int analyze_command(const Arguments& args) {
       ("null-samples", po::value<long>()->default_value(200), "size of the null ensemble")
       ("null-seed", po::value<long>()->default_value(1), "seed of the null ensemble")
       ("json", "print one JSON object on stdout (one per run for a results file)");
+  add_gains_reconstruction_options(options);
   po::positional_options_description positional;
   positional.add("results", 1);
   po::variables_map vm;
@@ -160,10 +162,14 @@ int analyze_command(const Arguments& args) {
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
   const AllocationReport report = analyze_allocation(read_csv_input(vm), analyze_options);
+  const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
   if (vm.count("json")) {
-    std::cout << allocation_report_json(report).str() << "\n";
+    JsonObject json = allocation_report_json(report);
+    if (reconstruction) json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
+    std::cout << json.str() << "\n";
   } else {
     print_allocation_report(std::cout, report);
+    if (reconstruction) print_gains_reconstruction(std::cout, *reconstruction);
   }
   if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
   return report.temperature.status == TemperatureStatus::not_converged ? kExitProblem : kExitOk;

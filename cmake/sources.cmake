@@ -5,6 +5,8 @@ allocsim_layer(core
   SOURCES
     core/atomic_file.cpp
     core/csv.cpp
+    core/csv_text.cpp
+    core/csv_write.cpp
     core/json.cpp
     core/memory_limit.cpp
     core/problem.cpp
@@ -25,6 +27,10 @@ allocsim_layer(analysis
     analysis/temperature.cpp
     analysis/marginal_newton.cpp
     analysis/gains_fit.cpp
+    analysis/model_table.cpp
+    analysis/trait_features.cpp
+    analysis/latent_association.cpp
+    analysis/gains_reconstruction.cpp
     analysis/allocation_report.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
@@ -84,6 +90,7 @@ add_executable(allocsim
   cli/main.cpp
   cli/mpi_sweep.cpp
   cli/analyze_command.cpp
+  cli/gains_reconstruction_output.cpp
   cli/inspect_command.cpp
   cli/plot_command.cpp
   cli/options.cpp

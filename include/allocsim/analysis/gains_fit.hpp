@@ -24,7 +24,17 @@
 // <F, pi_lambda> - <F, p> and whose Hessian is the covariance of the
 // features under pi conditional on the marginals (additive_residual.hpp).
 // With counts (N units), cov(lambda_hat) = Hessian^-1 / N; standard errors
-// are its diagonal's square roots.
+// are its diagonal's square roots. This is the same estimator, with the
+// same standard errors, as a Poisson regression of the counts on row and
+// column fixed effects and the features (a Poisson GLM with two-way fixed
+// effects): its likelihood equations fix the fitted margins at the
+// observed ones, so the margins are profiled out exactly.
+//
+// Likelihood-ratio interval of lambda_k (counts only): the values t whose
+// profile log-likelihood (the other weights refitted with lambda_k = t held
+// as an offset) lies within chi2_1(confidence) / 2 of the maximum (Wilks).
+// Goodness of fit: deviance, degrees of freedom, AIC and BIC of the Poisson
+// model (model_table.hpp), with K parameters beyond the row and column ones.
 //
 // When the observed moments lie on the edge of what couplings with these
 // marginals can reach (e.g. an allocation that is exactly optimal for some
@@ -35,16 +45,20 @@
 #include <string>
 #include <vector>
 
+#include "allocsim/analysis/model_table.hpp"
 #include "allocsim/analysis/observed_allocation.hpp"
 #include "allocsim/core/matrix.hpp"
 
 namespace allocsim {
 
 struct GainsFitOptions {
-  double tolerance = 1e-10;     // stop when max_k |<F_k, pi> - <F_k, p>| / scale_k <= this; in (0, 1e-3]
-                                // (scale_k = max |F_k| over allowed cells)
-  long max_iterations = 100;    // Newton steps; >= 1
-  double max_lambda = 1e8;      // |lambda_k| above this (in units of 1/scale_k) counts as diverging; > 0
+  double tolerance = 1e-10;  // stop when max_k |<F_k, pi> - <F_k, p>| / scale_k <= this; in (0,
+                             // 1e-3] (scale_k = max |F_k| over allowed cells)
+  long max_iterations = 100;  // Newton steps; >= 1
+  double max_lambda =
+      1e8;  // |lambda_k| above this (in units of 1/scale_k) counts as diverging; > 0
+  double confidence = 0.95;  // level of the likelihood-ratio intervals; in (0, 1)
+  bool intervals = true;     // compute the likelihood-ratio intervals (counts only)
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -60,10 +74,15 @@ struct GainsFitResult {
   std::string message;
   Vector theta_over_epsilon;  // lambda, one per feature
   Vector standard_errors;     // of lambda; NaN without counts
-  Eigen::MatrixXd covariance; // of lambda (K x K); NaN without counts
-  double moment_error = 0;    // max_k |<F_k, pi> - <F_k, p>| / scale_k reached
-  long iterations = 0;        // Newton steps
-  Matrix coupling;            // pi at lambda_hat (kept rows and columns of `observed`)
+  Vector ci_low, ci_high;     // likelihood-ratio interval of each lambda_k; NaN without counts
+                              // or when not computed; +-inf when the profile never drops enough
+  double confidence = 0.95;
+  std::vector<std::string> names;  // of the features, as given (or "feature k")
+  Eigen::MatrixXd covariance;      // of lambda (K x K); NaN without counts
+  double moment_error = 0;         // max_k |<F_k, pi> - <F_k, p>| / scale_k reached
+  long iterations = 0;             // Newton steps
+  Matrix coupling;                 // pi at lambda_hat (kept rows and columns of `observed`)
+  ModelFitSummary fit;             // deviance, df, AIC, BIC (model "features")
 
   bool converged() const { return status == GainsFitStatus::converged; }
   // One line, e.g. "theta/epsilon = (8.02 +- 0.11, -2.95 +- 0.09), 6 Newton steps".

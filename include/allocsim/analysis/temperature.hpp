@@ -38,8 +38,23 @@
 // the exact optimum's -> epsilon = 0 (at_optimum); at or below the gain of
 // the independent coupling (beta = 0: r c^T, or its access-restricted
 // scaling) -> no positive temperature explains it (not_explained_by_noise).
+// There the likelihood-ratio set of the same level is one-sided and is
+// reported in ci_low, ci_high (counts only):
+//   at_optimum:  [0, eps_up], l(beta) rising to its supremum l(infinity) (the
+//     limit of the profile as beta grows, reached along a ladder of beta);
+//     eps_up = 1 / the beta where l is chi2_1(confidence)/(2N) below it;
+//   not_explained_by_noise: [eps_lo, infinity), l falling from l(0) (beta >= 0
+//     is the parameter space); eps_lo = 1 / the beta where it has fallen by
+//     chi2_1(confidence)/(2N).
+// Either end is +infinity when the profile never falls that far.
 // Gains that are additive on the allowed cells (gains_ij = a_i + b_j) give
 // every coupling the same gain and carry no information: an InputError.
+//
+// Scale: epsilon is in gain units. Multiplying the gains by s > 0 multiplies
+// epsilon, its standard error and its interval by s exactly up to rounding:
+// the gains are divided by a power of two near their largest magnitude
+// before any solve. Gains below 2.2e-308 (subnormal doubles), or a result
+// that leaves the range of normal doubles, are an InputError.
 #pragma once
 
 #include <string>
@@ -51,14 +66,14 @@
 namespace allocsim {
 
 struct TemperatureOptions {
-  double confidence = 0.95;            // level of the likelihood-ratio interval; in (0, 1)
-  double beta_tolerance = 1e-11;       // stop when a step changes log(beta) by less; in (0, 1e-3]
-  double sinkhorn_tolerance = 1e-12;   // relative L1 marginal violation of each solve; in (0, 1e-6]
+  double confidence = 0.95;           // level of the likelihood-ratio interval; in (0, 1)
+  double beta_tolerance = 1e-11;      // stop when a step changes log(beta) by less; in (0, 1e-3]
+  double sinkhorn_tolerance = 1e-12;  // relative L1 marginal violation of each solve; in (0, 1e-6]
   long max_sinkhorn_iterations = 500000;  // per solve; >= 1
-  long max_solves = 300;               // entropic solves in all (estimate and interval); >= 10
-  double boundary_tolerance = 1e-9;    // share of (optimum gain - independent gain) within which
-                                       // the observed gain counts as at a boundary; in [0, 0.01]
-  bool interval = true;                // compute the likelihood-ratio interval (counts only)
+  long max_solves = 300;                  // entropic solves in all (estimate and interval); >= 10
+  double boundary_tolerance = 1e-9;       // share of (optimum gain - independent gain) within which
+                                          // the observed gain counts as at a boundary; in [0, 0.01]
+  bool interval = true;                   // compute the likelihood-ratio interval (counts only)
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -77,22 +92,22 @@ TemperatureStatus temperature_status_from_string(const std::string& text);
 struct TemperatureResult {
   TemperatureStatus status = TemperatureStatus::not_converged;
   std::string message;
-  double epsilon = 0;          // estimate (gain units); 0 at_optimum, +inf not_explained_by_noise
-  double beta = 0;             // 1 / epsilon
-  double standard_error = 0;   // of epsilon; NaN without counts or at a boundary
-  double ci_low = 0;           // likelihood-ratio interval for epsilon; NaN when not computed
-  double ci_high = 0;          // may be +inf
+  double epsilon = 0;         // estimate (gain units); 0 at_optimum, +inf not_explained_by_noise
+  double beta = 0;            // 1 / epsilon
+  double standard_error = 0;  // of epsilon; NaN without counts or at a boundary
+  double ci_low = 0;          // likelihood-ratio interval for epsilon; NaN when not computed
+  double ci_high = 0;         // may be +inf
   double confidence = 0.95;
-  double units = 0;            // N; 0 for shares
-  double observed_gain = 0;    // <gains, p>
-  double fitted_gain = 0;      // <gains, pi_eps_hat>; equals observed_gain at the estimate
-  double optimum_gain = 0;     // exact optimum with the observed marginals
-  double independent_gain = 0; // beta = 0 coupling
+  double units = 0;                 // N; 0 for shares
+  double observed_gain = 0;         // <gains, p>
+  double fitted_gain = 0;           // <gains, pi_eps_hat>; equals observed_gain at the estimate
+  double optimum_gain = 0;          // exact optimum with the observed marginals
+  double independent_gain = 0;      // beta = 0 coupling
   double conditional_variance = 0;  // V(beta_hat), per unit
-  long solves = 0;             // entropic solves in all
-  long search_steps = 0;       // Newton or bisection steps of the estimate
-  Matrix coupling;             // pi at epsilon_hat (kept rows and columns); the exact
-                               // coupling at_optimum; empty when not_explained_by_noise
+  long solves = 0;                  // entropic solves in all
+  long search_steps = 0;            // Newton or bisection steps of the estimate
+  Matrix coupling;                  // pi at epsilon_hat (kept rows and columns); the exact
+                                    // coupling at_optimum; empty when not_explained_by_noise
 
   bool estimated() const { return status == TemperatureStatus::estimated; }
   // One line, e.g. "epsilon 0.102 (se 0.004; 95% interval 0.095 to 0.110), N = 20000".

@@ -1,0 +1,196 @@
+#include "allocsim/analysis/gains_reconstruction.hpp"
+
+#include <cmath>
+#include <iomanip>
+#include <limits>
+#include <ostream>
+#include <sstream>
+
+#include "allocsim/analysis/additive_residual.hpp"
+
+namespace allocsim {
+namespace {
+
+std::vector<std::string> kept_labels(const std::vector<std::string>& labels,
+                                     const std::vector<Eigen::Index>& kept, const char* word) {
+  std::vector<std::string> out;
+  for (Eigen::Index k : kept)
+    out.push_back(static_cast<std::size_t>(k) < labels.size()
+                      ? labels[k]
+                      : std::string(word) + " " + std::to_string(k + 1));
+  return out;
+}
+
+JsonObject scores_json(const Matrix& scores, const std::vector<std::string>& labels) {
+  JsonObject out;
+  for (Eigen::Index i = 0; i < scores.rows(); ++i) {
+    std::vector<double> values;
+    for (Eigen::Index k = 0; k < scores.cols(); ++k) values.push_back(scores(i, k));
+    out.add(labels[static_cast<std::size_t>(i)], values);
+  }
+  return out;
+}
+
+std::vector<double> as_list(const Vector& v) {
+  return std::vector<double>(v.data(), v.data() + v.size());
+}
+
+JsonObject features_json(const GainsFitResult& fit) {
+  JsonObject weights;
+  for (Eigen::Index k = 0; k < fit.theta_over_epsilon.size(); ++k) {
+    JsonObject w;
+    w.add("weight", fit.theta_over_epsilon(k))
+        .add("standard_error", fit.standard_errors(k))
+        .add("interval_low", fit.ci_low(k))
+        .add("interval_high", fit.ci_high(k));
+    weights.add(fit.names[static_cast<std::size_t>(k)], w);
+  }
+  JsonObject out;
+  out.add("status", to_string(fit.status))
+      .add("message", fit.message)
+      .add("weights", weights)
+      .add("confidence", fit.confidence)
+      .add("deviance", fit.fit.deviance)
+      .add("degrees_of_freedom", static_cast<long long>(fit.fit.degrees_of_freedom))
+      .add("log_likelihood", fit.fit.log_likelihood)
+      .add("newton_steps", static_cast<long long>(fit.iterations))
+      .add("moment_error", fit.moment_error);
+  return out;
+}
+
+JsonObject latent_json(const LatentAssociationResult& latent, const GainsReconstructionReport& r) {
+  JsonObject out;
+  out.add("status", to_string(latent.status))
+      .add("message", latent.message)
+      .add("rank", static_cast<long long>(latent.rank))
+      .add("rank_chosen_by_bic", latent.rank_chosen)
+      .add("strengths", as_list(latent.strengths))
+      .add("strength_standard_errors", as_list(latent.strength_errors))
+      .add("row_scores", scores_json(latent.row_scores, r.row_labels))
+      .add("column_scores", scores_json(latent.column_scores, r.column_labels))
+      .add("sweeps", static_cast<long long>(latent.sweeps))
+      .add("score_equation_error", latent.score_error)
+      .add("strength_meaning", strength_sentence(latent));
+  return out;
+}
+
+std::string number(double x, int precision = 4) {
+  if (std::isnan(x)) return "n/a";
+  if (std::isinf(x)) return x > 0 ? "infinity" : "-infinity";
+  std::ostringstream out;
+  out.precision(precision);
+  out << x;
+  return out.str();
+}
+
+}  // namespace
+
+GainsReconstructionReport reconstruct_gains(const ObservedAllocation& o,
+                                            const GainsReconstructionInput& input,
+                                            const GainsReconstructionOptions& options) {
+  GainsReconstructionReport report;
+  report.row_labels = kept_labels(input.row_labels, o.kept_rows, "row");
+  report.column_labels = kept_labels(input.column_labels, o.kept_columns, "column");
+  report.models.push_back(independence_summary(o));
+  if (!input.features.empty()) {
+    report.features = fit_gains(o, input.features, input.feature_names, options.features);
+    report.models.push_back(report.features->fit);
+  }
+  if (options.latent) {
+    report.latent = fit_latent_association(o, *options.latent);
+    for (const ModelFitSummary& s : report.latent->table)
+      if (s.model != "independence") report.models.push_back(s);
+  }
+  report.models.push_back(saturated_summary(o));
+  return report;
+}
+
+std::string strength_sentence(const LatentAssociationResult& latent) {
+  if (latent.rank == 0 || latent.strengths.size() == 0)
+    return "no association beyond the margins is needed to describe this table: rows choose "
+           "columns in proportion to the columns' totals";
+  const double s = latent.strengths(0);
+  std::ostringstream out;
+  out.precision(3);
+  out << "sigma_1 = " << s
+      << " is the association strength on the first latent dimension: two rows one score "
+         "unit apart differ by "
+      << s << " in the log-odds of choosing between two columns one score unit apart (odds "
+      << "ratio " << std::exp(s) << "). Read as gains, it is 1/epsilon for latent traits "
+      << "whose weighted spread is 1: epsilon = " << 1 / s << " in those units.";
+  return out.str();
+}
+
+JsonObject gains_reconstruction_json(const GainsReconstructionReport& report) {
+  JsonObject out;
+  out.add("identified", "gains/epsilon only, up to row and column constants");
+  if (report.features) out.add("features", features_json(*report.features));
+  if (report.latent) out.add("latent", latent_json(*report.latent, report));
+  out.add("models", model_table_json(report.models));
+  return out;
+}
+
+void print_gains_reconstruction(std::ostream& out, const GainsReconstructionReport& report) {
+  out << "Gains reconstruction (identified: gains/epsilon only, up to row and column "
+         "constants)\n";
+  if (report.features) {
+    const GainsFitResult& f = *report.features;
+    out << "  features: " << to_string(f.status) << " after " << f.iterations << " Newton steps"
+        << (f.message.empty() ? "" : ": " + f.message) << "\n";
+    for (Eigen::Index k = 0; k < f.theta_over_epsilon.size(); ++k)
+      out << "    " << std::left << std::setw(24) << f.names[static_cast<std::size_t>(k)]
+          << std::right << " weight " << number(f.theta_over_epsilon(k)) << "  (se "
+          << number(f.standard_errors(k)) << "; " << number(100 * f.confidence, 3)
+          << "% likelihood-ratio interval " << number(f.ci_low(k)) << " to " << number(f.ci_high(k))
+          << ")\n";
+    out << "    deviance " << number(f.fit.deviance, 6) << " on " << f.fit.degrees_of_freedom
+        << " degrees of freedom\n";
+  }
+  if (report.latent) {
+    const LatentAssociationResult& l = *report.latent;
+    out << "  latent: " << l.brief() << "\n";
+    if (l.rank > 0) {
+      out << "    " << strength_sentence(l) << "\n";
+      const auto scores = [&](const char* what, const Matrix& s,
+                              const std::vector<std::string>& labels) {
+        out << "    " << what << " scores (dimension 1" << (s.cols() > 1 ? ", 2, ..." : "")
+            << "):\n";
+        for (Eigen::Index i = 0; i < s.rows(); ++i) {
+          out << "      " << std::left << std::setw(20) << labels[static_cast<std::size_t>(i)]
+              << std::right;
+          for (Eigen::Index k = 0; k < s.cols(); ++k) out << " " << std::setw(9) << number(s(i, k));
+          out << "\n";
+        }
+      };
+      scores("row", l.row_scores, report.row_labels);
+      scores("column", l.column_scores, report.column_labels);
+    }
+  }
+  if (report.models.size() > 2) {
+    out << "  model comparison:\n";
+    std::ostringstream table;
+    print_model_table(table, report.models);
+    std::istringstream lines(table.str());
+    for (std::string line; std::getline(lines, line);) out << "    " << line << "\n";
+  }
+}
+
+double correlation_after_row_column_effects(const ObservedAllocation& o, const Matrix& a,
+                                            const Matrix& b) {
+  const Matrix allowed = allowed_cells_of(o);
+  const Matrix ra = additive_residual(a, allowed), rb = additive_residual(b, allowed);
+  const double cells = allowed.sum();
+  const double ma = ra.sum() / cells, mb = rb.sum() / cells;
+  double saa = 0, sbb = 0, sab = 0;
+  for (Eigen::Index k = 0; k < ra.size(); ++k) {
+    if (!(allowed.data()[k] > 0)) continue;
+    const double x = ra.data()[k] - ma, y = rb.data()[k] - mb;
+    saa += x * x;
+    sbb += y * y;
+    sab += x * y;
+  }
+  if (!(saa > 0 && sbb > 0)) return std::numeric_limits<double>::quiet_NaN();
+  return sab / std::sqrt(saa * sbb);
+}
+
+}  // namespace allocsim
