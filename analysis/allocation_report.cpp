@@ -59,12 +59,19 @@ void compare_structure_with_null(const Matrix& allocation, const AllocationAnaly
   const bool weighted = nulls.model == NullModel::fixed_margins;
   const BinarizeOptions rule = weighted ? options.binarize : BinarizeOptions{};
   const Matrix observed = weighted ? allocation : to_matrix(binarize(allocation, options.binarize));
-  structure.nodf_null = compare_with_null(
-      [&rule](const Matrix& m) { return nodf(binarize(m, rule)).total; }, observed, nulls);
-  if (weighted) {
-    structure.wnodf_null = compare_with_null(
-        [&rule](const Matrix& m) { return weights_on_links(m, rule).total; }, allocation, nulls);
+  const MetricFunction links_nodf = [&rule](const Matrix& m) { return nodf(binarize(m, rule)).total; };
+  if (!weighted) {
+    structure.nodf_null = compare_with_null(links_nodf, observed, nulls);
+    return;
   }
+  // One ensemble for both metrics (observed is the allocation itself here).
+  const MetricFunction links_wnodf = [&rule](const Matrix& m) {
+    return weights_on_links(m, rule).total;
+  };
+  std::vector<NullComparison> both =
+      compare_metrics_with_null({links_nodf, links_wnodf}, allocation, nulls);
+  structure.nodf_null = std::move(both[0]);
+  structure.wnodf_null = std::move(both[1]);
 }
 
 JsonObject null_json(const NullComparison& c) {

@@ -5,8 +5,10 @@
 #include <cmath>
 #include <limits>
 #include <sstream>
+#include <vector>
 
 #include "allocsim/analysis/exact_transport.hpp"
+#include "allocsim/analysis/thread_team.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -23,6 +25,19 @@ constexpr double kStageTolerance = 1e-3;
 constexpr double kSmallestExponent = -600.0;
 // A kernel row or column sum below this is treated as underflowed.
 constexpr double kUnderflow = 1e-280;
+// Rows are processed in this many chunks (fewer when there are fewer rows),
+// whatever the number of threads.
+constexpr Eigen::Index kChunks = 16;
+
+// Below options.parallel_cells a sweep takes well under a millisecond and
+// one thread is used: handing out the work and joining costs more than a
+// second thread gains, and on a loaded machine a helper that is not
+// scheduled holds up each sweep (measured with allocsim_bench, group
+// "threads").
+int threads_for_size(const EntropicOptions& options, Eigen::Index n, Eigen::Index m) {
+  return static_cast<double>(n) * static_cast<double>(m) < options.parallel_cells ? 1
+                                                                                  : options.threads;
+}
 
 // The iteration state in normalised form: masses sum to 1 and gains are
 // shifted so that their largest allowed value is 0 (disallowed cells hold
@@ -34,7 +49,10 @@ class SinkhornState {
         mass_(problem.total_mass()),
         r_(problem.budgets / mass_),
         c_(problem.capacities / mass_),
-        threads_(std::max(1, std::min<int>(options.threads, static_cast<int>(problem.agents())))) {
+        chunk_rows_(rows_per_chunk(problem.agents())),
+        chunks_(static_cast<int>((problem.agents() + chunk_rows_ - 1) / chunk_rows_)),
+        team_(std::max(1, std::min(chunks_, threads_for_size(options, problem.agents(),
+                                                             problem.partners())))) {
     if (problem.access) {
       access_ = problem.access->cast<double>();
       shifted_gains_ = (access_.array() > 0).select(problem.gains, kMinusInfinity);
@@ -114,8 +132,7 @@ class SinkhornState {
     result.potentials = potentials();
     result.epsilon = eps_;
     result.primal_value = result.total_gain + eps_ * result.entropy;
-    result.dual_value = eps_ * mass_ * row_sums_.sum() -
-                        result.potentials.agent.dot(r_ * mass_) -
+    result.dual_value = eps_ * mass_ * row_sums_.sum() - result.potentials.agent.dot(r_ * mass_) -
                         result.potentials.partner.dot(c_ * mass_);
     result.iterations = sweeps_;
     result.log_domain_updates = log_updates_;
@@ -132,15 +149,14 @@ class SinkhornState {
   // per row, the sum of pi_ij (G_ij + g_j) over the cells with pi_ij > 0 (pi
   // normalised; for the entropy).
   Vector coupling_in_kernel(const Matrix& original_gains) {
-    const Eigen::Index n = K_.rows(), m = K_.cols();
-    Vector part(n), gain(n);
-    row_sums_.resize(n);
-    partial_.resize(m, threads_);
-#pragma omp parallel for num_threads(threads_) schedule(static, 1) if (threads_ > 1)
-    for (int b = 0; b < threads_; ++b) {
-      auto column_sums = partial_.col(b);
+    const Eigen::Index m = K_.cols();
+    Vector part(K_.rows()), gain(K_.rows());
+    row_sums_.resize(K_.rows());
+    partial_.resize(m, chunks_);
+    team_.run(chunks_, [&](int c) {
+      auto column_sums = partial_.col(c);
       column_sums.setZero();
-      for (Eigen::Index i = block_begin(b), end = block_begin(b + 1); i < end; ++i) {
+      for (Eigen::Index i = chunk_begin(c), end = chunk_begin(c + 1); i < end; ++i) {
         Eigen::Map<Vector> row(K_.row(i).data(), m);
         row.array() *= u_[i] * v_.array();
         row_sums_[i] = row.sum();
@@ -150,15 +166,26 @@ class SinkhornState {
         gain[i] = row.dot(Eigen::Map<const Vector>(original_gains.row(i).data(), m));
         row *= mass_;
       }
-    }
-    column_sums_ = partial_.rowwise().sum();
+    });
+    column_sums_ = sum_of_chunks();
     total_gain_ = gain.sum() * mass_;
     return part;
   }
 
-  // The row blocks each thread owns: contiguous, so each streams its part of K.
-  Eigen::Index block_begin(int block) const {
-    return K_.rows() * block / threads_;
+  // Chunks of rows: contiguous, the same for any number of threads, so
+  // every sum is taken in the same order and the results do not depend on
+  // the threads.
+  static Eigen::Index rows_per_chunk(Eigen::Index rows) {
+    return std::max<Eigen::Index>(1, (rows + kChunks - 1) / kChunks);
+  }
+  Eigen::Index chunk_begin(int chunk) const {
+    return std::min<Eigen::Index>(K_.rows(), chunk * chunk_rows_);
+  }
+  // The column sums of the chunks, added in chunk order.
+  Vector sum_of_chunks() const {
+    Vector total = partial_.col(0);
+    for (int c = 1; c < chunks_; ++c) total += partial_.col(c);
+    return total;
   }
 
   // One pass over K does the whole row half-sweep and the column products:
@@ -169,60 +196,91 @@ class SinkhornState {
   // Each thread owns a contiguous block of rows and its own column sums.
   // Returns false when some (K v)_i underflowed (or is not finite).
   bool row_pass() {
-    const Eigen::Index m = K_.cols();
     next_u_.resize(K_.rows());
-    partial_.resize(m, threads_);
-    double violation = 0;
-    int underflow = 0;
-#pragma omp parallel for num_threads(threads_) schedule(static, 1) if (threads_ > 1) \
-    reduction(+ : violation) reduction(| : underflow)
-    for (int b = 0; b < threads_; ++b) {
-      auto column_sums = partial_.col(b);
-      column_sums.setZero();
-      for (Eigen::Index i = block_begin(b), end = block_begin(b + 1); i < end; ++i) {
-        const Eigen::Map<const Vector> row(K_.row(i).data(), m);
-        const double kv = row.dot(v_);
-        if (!(kv > kUnderflow && kv <= std::numeric_limits<double>::max())) {
-          underflow = 1;
-          continue;
-        }
-        violation += std::abs(u_[i] * kv - r_[i]);
-        next_u_[i] = r_[i] / kv;
-        column_sums.noalias() += next_u_[i] * row;
-      }
+    partial_.resize(K_.cols(), chunks_);
+    chunk_violation_.resize(chunks_);
+    chunk_underflow_.resize(chunks_);
+    team_.run(chunks_, [&](int c) { row_pass_chunk(c); });
+    bool underflow = false;
+    row_violation_ = 0;
+    for (int c = 0; c < chunks_; ++c) {
+      row_violation_ += chunk_violation_[c];
+      underflow = underflow || chunk_underflow_[c];
     }
-    row_violation_ = violation;
     if (underflow) return false;
-    if (threads_ == 1) {
-      KTu_ = partial_.col(0);
-    } else {
-      KTu_ = partial_.rowwise().sum();
-    }
+    KTu_ = sum_of_chunks();
     return true;
+  }
+
+  // The row pass over one chunk, four rows at a time: v and the chunk's
+  // column sums are read once per four rows of K.
+  void row_pass_chunk(int c) {
+    const Eigen::Index m = K_.cols();
+    double* column_sums = partial_.col(c).data();
+    std::fill(column_sums, column_sums + m, 0.0);
+    const double* v = v_.data();
+    double violation = 0;
+    bool underflow = false;
+    // u_i = r_i / (K v)_i for a row, and the violation of the current u_i.
+    const auto row_scale = [&](Eigen::Index i, double kv) {
+      if (!(kv > kUnderflow && kv <= std::numeric_limits<double>::max())) {
+        underflow = true;
+        return 0.0;
+      }
+      violation += std::abs(u_[i] * kv - r_[i]);
+      return next_u_[i] = r_[i] / kv;
+    };
+    Eigen::Index i = chunk_begin(c);
+    const Eigen::Index end = chunk_begin(c + 1);
+    for (; i + 4 <= end; i += 4) {
+      const double *k0 = K_.row(i).data(), *k1 = K_.row(i + 1).data(), *k2 = K_.row(i + 2).data(),
+                   *k3 = K_.row(i + 3).data();
+      double s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+#pragma omp simd reduction(+ : s0, s1, s2, s3)
+      for (Eigen::Index j = 0; j < m; ++j) {
+        s0 += k0[j] * v[j];
+        s1 += k1[j] * v[j];
+        s2 += k2[j] * v[j];
+        s3 += k3[j] * v[j];
+      }
+      const double a0 = row_scale(i, s0), a1 = row_scale(i + 1, s1), a2 = row_scale(i + 2, s2),
+                   a3 = row_scale(i + 3, s3);
+#pragma omp simd
+      for (Eigen::Index j = 0; j < m; ++j)
+        column_sums[j] += a0 * k0[j] + a1 * k1[j] + a2 * k2[j] + a3 * k3[j];
+    }
+    for (; i < end; ++i) {
+      const double* k0 = K_.row(i).data();
+      double s0 = 0;
+#pragma omp simd reduction(+ : s0)
+      for (Eigen::Index j = 0; j < m; ++j) s0 += k0[j] * v[j];
+      const double a0 = row_scale(i, s0);
+#pragma omp simd
+      for (Eigen::Index j = 0; j < m; ++j) column_sums[j] += a0 * k0[j];
+    }
+    chunk_violation_[c] = violation;
+    chunk_underflow_[c] = underflow;
   }
 
   void rebuild_kernel() {
     K_.resize(shifted_gains_.rows(), shifted_gains_.cols());
     const double inverse = 1.0 / eps_;
-#pragma omp parallel num_threads(threads_) if (threads_ > 1)
-    {
+    team_.run(chunks_, [&](int c) {
       // Row by row: Eigen vectorises exp on a contiguous row, not on a broadcast expression.
       Eigen::ArrayXd exponent(K_.cols());
-#pragma omp for schedule(static)
-      for (Eigen::Index i = 0; i < K_.rows(); ++i) {
+      for (Eigen::Index i = chunk_begin(c), end = chunk_begin(c + 1); i < end; ++i) {
         exponent = (shifted_gains_.row(i).array() + g_.transpose().array() + f_[i]) * inverse;
         K_.row(i) = exponent.max(kSmallestExponent).exp();
         if (access_.size()) K_.row(i).array() *= access_.row(i).array();
       }
-    }
+    });
     u_ = Vector::Ones(r_.size());
     v_ = Vector::Ones(c_.size());
   }
 
   bool needs_absorption() const {
     const double t = options_.absorb_threshold;
-    return u_.maxCoeff() > t || v_.maxCoeff() > t || u_.minCoeff() < 1 / t ||
-           v_.minCoeff() < 1 / t;
+    return u_.maxCoeff() > t || v_.maxCoeff() > t || u_.minCoeff() < 1 / t || v_.minCoeff() < 1 / t;
   }
 
   void absorb_and_rebuild() {
@@ -271,11 +329,15 @@ class SinkhornState {
   double shift_ = 0;
   double eps_ = 1;
   Vector f_, g_, u_, v_, next_u_, KTu_;
-  Eigen::MatrixXd partial_;  // per-thread column sums of K^T u
-  double row_violation_ = 0;  // of the last row pass, before its u update
+  Eigen::MatrixXd partial_;  // per-chunk column sums of K^T u
+  std::vector<double> chunk_violation_;
+  std::vector<char> chunk_underflow_;
+  double row_violation_ = 0;       // of the last row pass, before its u update
   Vector row_sums_, column_sums_;  // of the final coupling (normalised)
   double total_gain_ = 0;          // of the final coupling
-  int threads_ = 1;
+  Eigen::Index chunk_rows_ = 1;
+  int chunks_ = 1;
+  ThreadTeam team_;
   double violation_ = std::numeric_limits<double>::infinity();
   long sweeps_ = 0;
   long log_updates_ = 0;
@@ -294,8 +356,7 @@ class SinkhornState {
 double first_stage_epsilon(const TransportProblem& problem, const EntropicOptions& options,
                            double warm_epsilon) {
   if (!options.epsilon_scaling) return options.epsilon;
-  const double start =
-      warm_epsilon > 0 ? warm_epsilon : gain_range(problem) / -kSmallestExponent;
+  const double start = warm_epsilon > 0 ? warm_epsilon : gain_range(problem) / -kSmallestExponent;
   return std::max(options.epsilon, start);
 }
 
@@ -310,20 +371,24 @@ void EntropicOptions::validate() const {
     throw InputError("epsilon_shrink", "must be in (0, 1)");
   if (!(absorb_threshold > 1)) throw InputError("absorb_threshold", "must be greater than 1");
   if (threads < 1) throw InputError("threads", "must be at least 1");
+  if (!(parallel_cells >= 0)) throw InputError("parallel_cells", "must be >= 0");
 }
 
 std::string to_string(EntropicStatus status) {
   switch (status) {
-    case EntropicStatus::converged: return "converged";
-    case EntropicStatus::not_converged: return "not_converged";
-    case EntropicStatus::infeasible: return "infeasible";
+    case EntropicStatus::converged:
+      return "converged";
+    case EntropicStatus::not_converged:
+      return "not_converged";
+    case EntropicStatus::infeasible:
+      return "infeasible";
   }
   return "unknown";
 }
 
 EntropicStatus entropic_status_from_string(const std::string& text) {
-  for (auto s : {EntropicStatus::converged, EntropicStatus::not_converged,
-                 EntropicStatus::infeasible}) {
+  for (auto s :
+       {EntropicStatus::converged, EntropicStatus::not_converged, EntropicStatus::infeasible}) {
     if (to_string(s) == text) return s;
   }
   throw InputError("status", "'" + text + "' is not one of converged, not_converged, infeasible");
@@ -363,8 +428,7 @@ std::string EntropicResult::brief() const {
   out << ", total gain " << total_gain << ", " << iterations << " iterations in " << stages
       << " stage" << (stages == 1 ? "" : "s");
   if (log_domain_updates > 0) out << " (" << log_domain_updates << " log-domain updates)";
-  out << ", marginal error " << marginal_error << ", "
-      << seconds * 1e3 << " ms";
+  out << ", marginal error " << marginal_error << ", " << seconds * 1e3 << " ms";
   return out.str();
 }
 
@@ -391,7 +455,8 @@ EntropicResult solve_entropic(const TransportProblem& problem, const EntropicOpt
   for (;;) {
     const bool last = eps <= options.epsilon;
     ++result.stages;
-    const double tolerance = last ? options.tolerance : std::max(options.tolerance, kStageTolerance);
+    const double tolerance =
+        last ? options.tolerance : std::max(options.tolerance, kStageTolerance);
     converged = state.run_stage(eps, tolerance, sweeps_left) && last;
     if (last || sweeps_left == 0) break;
     eps = std::max(options.epsilon, eps * options.epsilon_shrink);

@@ -3,10 +3,14 @@
 #include <algorithm>
 #include <cassert>
 #include <cmath>
+#include <condition_variable>
+#include <exception>
 #include <limits>
 #include <map>
+#include <mutex>
 #include <numeric>
 #include <sstream>
+#include <thread>
 
 #include "allocsim/core/error.hpp"
 
@@ -25,6 +29,15 @@ std::vector<double> log_factorials(long size) {
   for (std::size_t k = 1; k < table.size(); ++k) table[k] = table[k - 1] + std::log(double(k));
   return table;
 }
+
+}  // namespace
+
+// sample_table_with_margins with log(k!) for k = 0 .. total given (the
+// sampler keeps it: it costs a log per unit of the total).
+Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
+                       const std::vector<double>& log_factorial, std::mt19937_64& rng);
+
+namespace {
 
 // Inversion sampling of Hypergeometric(population, successes, draws),
 // summing probabilities outward from the mode (as AS 159 does); the mode's
@@ -282,14 +295,19 @@ long sample_hypergeometric(long population, long successes, long draws, std::mt1
 
 Matrix sample_table_with_margins(const std::vector<long>& row_totals,
                                  const std::vector<long>& column_totals, std::mt19937_64& rng) {
+  return patefield_table(
+      row_totals, column_totals,
+      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng);
+}
+
+Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
+                       const std::vector<double>& log_factorial, std::mt19937_64& rng) {
   const std::size_t n = row_totals.size(), m = column_totals.size();
   assert(std::accumulate(row_totals.begin(), row_totals.end(), 0L) ==
          std::accumulate(column_totals.begin(), column_totals.end(), 0L));
   Matrix table = Matrix::Zero(static_cast<Index>(n), static_cast<Index>(m));
   if (n == 0 || m == 0) return table;
   std::vector<long> column_left = column_totals;
-  const std::vector<double> log_factorial =
-      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1);
   for (std::size_t i = 0; i + 1 < n; ++i) {
     long row_left = row_totals[i];
     long pool = std::accumulate(column_left.begin(), column_left.end(), 0L);
@@ -488,6 +506,7 @@ void NullOptions::validate() const {
   if (samples < 2) throw InputError("samples", "must be at least 2");
   if (curveball_trades < 0) throw InputError("curveball_trades", "must be >= 0 (0 = automatic)");
   if (share_units < 1) throw InputError("share_units", "must be at least 1");
+  if (threads < 0) throw InputError("threads", "must be >= 0 (0 = the hardware's)");
   bicm.validate();
 }
 
@@ -511,6 +530,8 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
           row_counts_.push_back(std::lround(row_totals_(i)));
         for (Index j = 0; j < observed.cols(); ++j)
           column_counts_.push_back(std::lround(column_totals_(j)));
+        log_factorial_ = log_factorials(
+            std::accumulate(column_counts_.begin(), column_counts_.end(), 0L) + 1);
       }
       break;
     }
@@ -536,7 +557,7 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
 Matrix NullSampler::next() {
   switch (options_.model) {
     case NullModel::fixed_margins: {
-      if (counts_) return sample_table_with_margins(row_counts_, column_counts_, rng_);
+      if (counts_) return patefield_table(row_counts_, column_counts_, log_factorial_, rng_);
       const double total = reference_.sum();
       if (!(total > 0)) return reference_;
       Matrix table =
@@ -562,17 +583,130 @@ std::string NullComparison::brief() const {
   return out.str();
 }
 
-NullComparison compare_with_null(const MetricFunction& metric, const Matrix& observed,
-                                 const NullOptions& options) {
-  NullSampler sampler(observed, options);
+namespace {
+
+int resolve_threads(int threads) {
+  if (threads > 0) return threads;
+  return static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+}
+
+// The metrics of `count` samples drawn in order from `sampler`:
+// values[k][s] = metrics[k](sample s). Any free thread draws the next sample
+// when no other is drawing and a slot is free (so the draws stay in order),
+// and otherwise evaluates the oldest drawn sample not yet taken. Waiting
+// threads block on a condition variable: nothing spins, so a loaded machine
+// only slows the threads down, it does not stall them on each other.
+class EnsembleEvaluation {
+ public:
+  EnsembleEvaluation(NullSampler& sampler, const std::vector<MetricFunction>& metrics, long count,
+                     int threads)
+      : sampler_(sampler),
+        metrics_(metrics),
+        count_(count),
+        slots_(static_cast<std::size_t>(2 * threads + 2)),
+        evaluated_(static_cast<std::size_t>(count), 0),
+        values_(metrics.size(), std::vector<double>(static_cast<std::size_t>(count))) {}
+
+  std::vector<std::vector<double>> run(int threads) {
+    std::vector<std::thread> helpers;
+    for (int t = 1; t < threads; ++t) helpers.emplace_back([this] { work(); });
+    work();
+    for (auto& h : helpers) h.join();
+    if (error_) std::rethrow_exception(error_);
+    return std::move(values_);
+  }
+
+ private:
+  void work() {
+    std::unique_lock<std::mutex> lock(mutex_);
+    while (!error_ && finished_ < count_) {
+      if (can_draw()) {
+        drawing_ = true;
+        const long s = drawn_;
+        lock.unlock();
+        const bool ok = attempt([&] { slot(s) = sampler_.next(); });
+        lock.lock();
+        drawing_ = false;
+        if (ok) ++drawn_;
+        changed_.notify_all();
+      } else if (taken_ < drawn_) {
+        const long s = taken_++;
+        lock.unlock();
+        attempt([&] {
+          for (std::size_t k = 0; k < metrics_.size(); ++k)
+            values_[k][static_cast<std::size_t>(s)] = metrics_[k](slot(s));
+        });
+        lock.lock();
+        evaluated_[static_cast<std::size_t>(s)] = 1;
+        ++finished_;
+        changed_.notify_all();
+      } else {
+        changed_.wait(lock);
+      }
+    }
+  }
+
+  // Whether this thread may draw sample drawn_: nobody else draws, and its
+  // slot is free (the sample that held it has been evaluated).
+  bool can_draw() const {
+    const long reuse = drawn_ - static_cast<long>(slots_.size());
+    return !drawing_ && drawn_ < count_ &&
+           (reuse < 0 || evaluated_[static_cast<std::size_t>(reuse)]);
+  }
+
+  Matrix& slot(long sample) { return slots_[static_cast<std::size_t>(sample) % slots_.size()]; }
+
+  // Runs `work`; on an exception records the first one and returns false.
+  template <typename Work>
+  bool attempt(Work work) {
+    try {
+      work();
+      return true;
+    } catch (...) {
+      std::lock_guard<std::mutex> guard(mutex_);  // called unlocked
+      if (!error_) error_ = std::current_exception();
+      return false;
+    }
+  }
+
+  NullSampler& sampler_;
+  const std::vector<MetricFunction>& metrics_;
+  const long count_;
+  std::vector<Matrix> slots_;
+  std::vector<char> evaluated_;
+  std::vector<std::vector<double>> values_;
+  std::mutex mutex_;
+  std::condition_variable changed_;
+  long drawn_ = 0, taken_ = 0, finished_ = 0;
+  bool drawing_ = false;
+  std::exception_ptr error_;
+};
+
+std::vector<std::vector<double>> evaluate_ensemble(NullSampler& sampler,
+                                                   const std::vector<MetricFunction>& metrics,
+                                                   long count, int threads) {
+  if (threads <= 1) {
+    std::vector<std::vector<double>> values(metrics.size());
+    for (auto& v : values) v.reserve(static_cast<std::size_t>(count));
+    for (long s = 0; s < count; ++s) {
+      const Matrix sample = sampler.next();
+      for (std::size_t k = 0; k < metrics.size(); ++k) values[k].push_back(metrics[k](sample));
+    }
+    return values;
+  }
+  return EnsembleEvaluation(sampler, metrics, count, threads).run(threads);
+}
+
+// The figures of one metric from its observed and null values.
+NullComparison summarise(const NullSampler& sampler, const NullOptions& options, double observed,
+                         std::vector<double> null_values) {
   NullComparison result;
   result.model = options.model;
   result.model_description = sampler.description();
   result.samples = options.samples;
   result.seed = options.seed;
-  result.observed = metric(sampler.reference());
-  result.null_values.reserve(static_cast<std::size_t>(options.samples));
-  for (long s = 0; s < options.samples; ++s) result.null_values.push_back(metric(sampler.next()));
+  result.observed = observed;
+  result.null_values = std::move(null_values);
 
   const double count = static_cast<double>(options.samples);
   const double mean =
@@ -608,6 +742,27 @@ NullComparison compare_with_null(const MetricFunction& metric, const Matrix& obs
   }
   result.message = message.str();
   return result;
+}
+
+}  // namespace
+
+std::vector<NullComparison> compare_metrics_with_null(const std::vector<MetricFunction>& metrics,
+                                                      const Matrix& observed,
+                                                      const NullOptions& options) {
+  NullSampler sampler(observed, options);
+  std::vector<double> observed_values;
+  for (const auto& metric : metrics) observed_values.push_back(metric(sampler.reference()));
+  std::vector<std::vector<double>> null_values =
+      evaluate_ensemble(sampler, metrics, options.samples, resolve_threads(options.threads));
+  std::vector<NullComparison> results;
+  for (std::size_t k = 0; k < metrics.size(); ++k)
+    results.push_back(summarise(sampler, options, observed_values[k], std::move(null_values[k])));
+  return results;
+}
+
+NullComparison compare_with_null(const MetricFunction& metric, const Matrix& observed,
+                                 const NullOptions& options) {
+  return compare_metrics_with_null({metric}, observed, options).front();
 }
 
 }  // namespace allocsim

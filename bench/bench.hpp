@@ -29,7 +29,8 @@ double best_time(int repeats, const std::function<void()>& work);
 
 // The groups of rows, in the order the table shows them.
 struct Bandwidth {
-  double read_one = 0, read_two = 0;  // bytes per second over a buffer the size of a 1000x1000 kernel
+  double read_one = 0,
+         read_two = 0;  // bytes per second over a buffer the size of a 1000x1000 kernel
   double dram_one = 0, dram_two = 0;  // the same over a buffer far larger than the caches
   double exp_seconds = 0;             // seconds per vectorised exp (one thread)
 };
@@ -39,10 +40,16 @@ void entropic_rows(const Settings& settings, Report& report);
 void iteration_rows(const Settings& settings, const Bandwidth& bandwidth, Report& report);
 void simulation_rows(const Settings& settings, const Bandwidth& bandwidth, Report& report);
 void csv_rows(const Settings& settings, Report& report);
+void threads_rows(const Settings& settings, Report& report);
+void null_rows(const Settings& settings, Report& report);
+void scale_rows(const Settings& settings, Report& report);
 void python_module_rows(const Settings& settings, Report& report);  // needs the built module
 
 // The child side of the memory rows (this program re-executed): plays a
 // simulation and exits; returns the exit code.
 int memory_child(long size, long rounds, const std::string& file);
+// The child side of the scale rows: solves one instance ("exact" or
+// "entropic") and writes its solve time and status to `file`.
+int scale_child(const std::string& kind, long n, const std::string& file);
 
 }  // namespace allocsim::bench

@@ -41,8 +41,8 @@ const char* kUsage =
     "usage: allocsim_bench [--quick] [--json] [--only GROUP,...]\n"
     "  --quick   smoke run: small sizes and short caps (about half a minute)\n"
     "  --json    print one JSON object instead of the table\n"
-    "  --only    comma-separated groups: exact, entropic, iteration, simulation, csv, python\n"
-    "            (machine always)\n";
+    "  --only    comma-separated groups: exact, entropic, iteration, simulation, threads, nulls,\n"
+    "            scale, csv, python (machine always)\n";
 
 std::string self_path() {
   char buffer[4096];
@@ -70,6 +70,8 @@ int main(int argc, char** argv) {
   using namespace allocsim::bench;
   if (argc == 5 && std::strcmp(argv[1], "--memory-child") == 0)
     return memory_child(std::atol(argv[2]), std::atol(argv[3]), argv[4]);
+  if (argc == 5 && std::strcmp(argv[1], "--scale-child") == 0)
+    return scale_child(argv[2], std::atol(argv[3]), argv[4]);
 
   Settings settings;
   bool json = false;
@@ -127,6 +129,18 @@ int main(int argc, char** argv) {
       std::cerr << "allocsim_bench: simulation, sweeps, memory...\n";
       simulation_rows(settings, bandwidth, report);
     }
+    if (wanted("threads")) {
+      std::cerr << "allocsim_bench: threads at rest and under load...\n";
+      threads_rows(settings, report);
+    }
+    if (wanted("nulls")) {
+      std::cerr << "allocsim_bench: null ensembles vs a numpy NODF loop...\n";
+      null_rows(settings, report);
+    }
+    if (wanted("scale")) {
+      std::cerr << "allocsim_bench: exact and entropic at scale, peak memory...\n";
+      scale_rows(settings, report);
+    }
     if (wanted("csv")) {
       std::cerr << "allocsim_bench: CSV reading and writing, whole solve process...\n";
       csv_rows(settings, report);
@@ -140,7 +154,8 @@ int main(int argc, char** argv) {
     code = 1;
   }
   std::string command = "rm -rf '" + settings.workdir + "'";
-  if (std::system(command.c_str()) != 0) std::cerr << "allocsim_bench: could not remove " << folder << "\n";
+  if (std::system(command.c_str()) != 0)
+    std::cerr << "allocsim_bench: could not remove " << folder << "\n";
 
   const double seconds = seconds_since(started);
   const double load_after = load_average();
@@ -156,13 +171,15 @@ int main(int argc, char** argv) {
   report.set_context(context);
   report.note("load average (1 min) " + format_number(load_before, 2) + " before, " +
               format_number(load_after, 2) + " after; " +
-              std::to_string(std::thread::hardware_concurrency()) + " hardware threads; whole run " +
-              format_seconds(seconds) + (settings.quick ? " (--quick)" : ""));
+              std::to_string(std::thread::hardware_concurrency()) +
+              " hardware threads; whole run " + format_seconds(seconds) +
+              (settings.quick ? " (--quick)" : ""));
   report.note("numpy " + info.word("numpy") +
               " with OPENBLAS_NUM_THREADS=1 (OPENBLAS_CORETYPE, OPENBLAS_L2_SIZE unset for it); "
               "ratios are baseline time / our time, except 'vs bare LEMON' and the rows with a "
-              "bound (bound / our time), the memory row (long / short), the CSV speed rows (our speed / "
-              "target speed) and the whole-process row (process / solve alone)");
+              "bound (bound / our time), the memory rows (long / short; peak / n*m*8), the "
+              "rows under load (our time / 1-thread time), the CSV speed rows (our speed / target "
+              "speed) and the whole-process row (process / solve alone)");
   std::cout << (json ? report.json() + "\n" : report.table());
   return code;
 }

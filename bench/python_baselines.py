@@ -8,6 +8,7 @@ n*m, budgets.bin, capacities.bin; masses sum to 1) into a folder and calls
   python_baselines.py highs  FOLDER N M
   python_baselines.py plain  FOLDER N M EPS TOL MAX_ITER BUDGET_SECONDS
   python_baselines.py log    FOLDER N M EPS TOL MAX_ITER BUDGET_SECONDS
+  python_baselines.py nodf   FOLDER N M COUNT
 
 Each prints one JSON object on stdout. Timers start after the files are read
 (and, for HiGHS, after the sparse constraint matrix is built): they time the
@@ -22,6 +23,9 @@ plain: textbook Sinkhorn in scaling form, K = exp((G - max G) / eps),
        u = r / (K v), v = c / (K^T u), no stabilisation, no epsilon-scaling.
 log:   textbook log-domain Sinkhorn, f = eps log r - eps LSE_j((G_ij + g_j)/eps),
        g = eps log c - eps LSE_i((G_ij + f_i)/eps), no epsilon-scaling.
+nodf:  NODF (Almeida-Neto et al. 2008) of counts.bin binarised by cell > 0,
+       by degree, from the overlap matrices B B^T and B^T B (BLAS), computed
+       COUNT times (the metric only); prints the time and the value.
 Both Sinkhorns stop when the row violation |P 1 - r|_1 (columns are exact
 after the column update) is <= TOL, after MAX_ITER sweeps, or when the time
 budget is spent; a sweep that leaves floating-point range stops them with
@@ -108,6 +112,27 @@ def sinkhorn_log(gains, r, c, eps, tol, max_iter, budget):
     return finish(start, sweeps, violation, tol, failed)
 
 
+def nodf_part(b):
+    """Sum over pairs with k_upper > k_lower > 0 of overlap / k_lower, and the pair count."""
+    k = b.sum(axis=1)
+    overlap = b @ b.T
+    upper_fuller = (k[:, None] > k[None, :]) & (k[None, :] > 0)
+    scores = np.where(upper_fuller, overlap / np.maximum(k[None, :], 1.0), 0.0)
+    rows = b.shape[0]
+    return scores.sum(), rows * (rows - 1) / 2.0
+
+
+def nodf_loop(counts, count):
+    links = (counts > 0).astype(np.float64)
+    start = time.perf_counter()
+    for _ in range(count):
+        row_sum, row_pairs = nodf_part(links)
+        column_sum, column_pairs = nodf_part(links.T)
+        value = 100.0 * (row_sum + column_sum) / (row_pairs + column_pairs)
+    seconds = time.perf_counter() - start
+    return {"seconds": seconds, "seconds_per_matrix": seconds / count, "nodf": float(value)}
+
+
 def finish(start, sweeps, violation, tol, failed):
     seconds = time.perf_counter() - start
     return {"seconds": seconds, "iterations": sweeps, "violation": violation,
@@ -121,6 +146,10 @@ def main(argv):
         print(json.dumps({"numpy": np.__version__, "python": sys.version.split()[0]}))
         return 0
     folder, n, m = argv[2], int(argv[3]), int(argv[4])
+    if task == "nodf":
+        counts = np.fromfile(folder + "/counts.bin", dtype=np.float64).reshape(n, m)
+        print(json.dumps(nodf_loop(counts, int(argv[5]))))
+        return 0
     gains, r, c = load(folder, n, m)
     if task == "highs":
         out = highs(gains, r, c)

@@ -29,7 +29,8 @@ std::string usage_text() {
          "  wnodf-vs-temperature   the same for WNODF\n"
          "  epsilon-vs-temperature estimated epsilon (with its interval) against the true temperature\n"
          "  distance-vs-temperature distance to the entropic and exact couplings\n"
-         "  estimator-scores       error and coverage on benchmark sets (true_epsilon columns)\n"
+         "  estimator-scores       an estimator's score card: estimate, error against truth and units,\n"
+         "                         coverage per band (a scores file of allocsim score --out scores.h5)\n"
          "Per-run figures are drawn for --run (default: the run with the smallest run_index).";
 }
 

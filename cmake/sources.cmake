@@ -32,6 +32,7 @@ allocsim_layer(analysis
     analysis/latent_association.cpp
     analysis/gains_reconstruction.cpp
     analysis/allocation_report.cpp
+    analysis/thread_team.cpp
   LINKS allocsim::core allocsim_lemon OpenMP::OpenMP_CXX)
 
 allocsim_layer(sim
@@ -60,9 +61,13 @@ allocsim_layer(results
 allocsim_layer(experiments
   SOURCES
     experiments/analysis_settings.cpp
+    experiments/benchmark_draws.cpp
+    experiments/benchmark_score.cpp
     experiments/benchmark_set.cpp
+    experiments/benchmark_sources.cpp
     experiments/experiment.cpp
     experiments/keys.cpp
+    experiments/score_file.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
     experiments/sweep_runner.cpp

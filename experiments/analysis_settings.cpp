@@ -16,6 +16,7 @@ AllocationAnalysisOptions analysis_options(const ExperimentValues& values, std::
     std::uint64_t state = static_cast<std::uint64_t>(values.integer("scenario.seed")) ^
                           (0x9E3779B97F4A7C15ULL * (run_index + 1));
     nulls.seed = splitmix64(state);
+    nulls.threads = 1;  // runs of a sweep already fill the threads
     options.nulls = nulls;
   }
   return options;

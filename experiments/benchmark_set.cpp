@@ -1,159 +1,157 @@
 #include "allocsim/experiments/benchmark_set.hpp"
 
 #include <algorithm>
-#include <cmath>
 #include <cstdio>
 #include <filesystem>
-#include <map>
+#include <fstream>
 #include <numeric>
 #include <sstream>
+#include <stdexcept>
 
-#include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/core/atomic_file.hpp"
+#include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
-#include "allocsim/sim/engine.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {
 namespace fs = std::filesystem;
 namespace {
 
-std::string case_name(long k) {
+constexpr std::uint64_t kOrderSubstream = 1;  // design stream of run 0: the permutation
+
+long total_cases(const BenchmarkOptions& o, long cells) {
+  return o.cases > 0 ? o.cases : cells * o.replicates;
+}
+
+long design_cells(const BenchmarkOptions& o) {
+  const long grid = o.epsilon.drawn() ? 1 : static_cast<long>(o.epsilon.values.size());
+  return static_cast<long>(o.families.size() * o.sources.size()) * grid;
+}
+
+std::string case_name(long position, long total) {
+  int digits = 4;
+  for (long t = total - 1; t >= 10000; t /= 10) ++digits;
   char name[32];
-  std::snprintf(name, sizeof name, "case-%05ld", k);
+  std::snprintf(name, sizeof name, "case-%0*ld", digits, position);
   return name;
 }
 
-// Whole units drawn from the entropic coupling at epsilon.
-Matrix model_allocation(const TransportProblem& problem, double epsilon, long units,
-                        std::uint64_t seed, long k) {
-  EntropicOptions options;
-  options.epsilon = epsilon;
-  const EntropicResult coupling = solve_entropic(problem, options);
-  if (!coupling.converged()) {
-    throw std::runtime_error(case_name(k) + ": the entropic coupling did not converge (" +
-                             coupling.message + ")");
+// Fisher-Yates on 0..total-1: position[k] of design case k.
+std::vector<long> seeded_positions(long total, std::uint64_t seed) {
+  std::vector<long> order(static_cast<std::size_t>(total));
+  std::iota(order.begin(), order.end(), 0L);
+  RandomStream rng(seed, 0, StreamId::design, kOrderSubstream);
+  for (long k = total - 1; k > 0; --k) {
+    std::swap(order[static_cast<std::size_t>(k)],
+              order[static_cast<std::size_t>(rng.below(static_cast<std::uint64_t>(k + 1)))]);
   }
-  Matrix counts = Matrix::Zero(problem.agents(), problem.partners());
-  RandomStream rng(seed, static_cast<std::uint64_t>(k), StreamId::dynamics);
-  add_multinomial(rng, units, coupling.coupling.data(), coupling.coupling.size(),
-                  coupling.coupling.sum(), counts.data());
-  return counts;
+  std::vector<long> position(order.size());
+  for (long p = 0; p < total; ++p)
+    position[static_cast<std::size_t>(order[static_cast<std::size_t>(p)])] = p;
+  return position;
 }
 
-// Whole units from the price rule at T = epsilon, after its prices settle.
-Matrix price_rule_allocation(const TransportProblem& problem, double epsilon, long units,
-                             std::uint64_t seed, long k) {
-  DynamicsOptions dynamics;
-  dynamics.temperature = epsilon;
-  dynamics.rounds = 250;
-  dynamics.burn_in = 50;
-  dynamics.window = 50;
-  dynamics.units = std::max(1L, units / (dynamics.rounds - dynamics.burn_in));
-  return run_dynamics(problem, dynamics, seed, static_cast<std::uint64_t>(k)).total;
-}
-
-ScenarioOptions scenario_for(const BenchmarkOptions& options, const std::string& family) {
-  ScenarioOptions scenario;
-  scenario.agents = options.agents;
-  scenario.partners = options.partners;
-  scenario.gains = gains_kind_from_string(family);
-  scenario.budgets = MassKind::lognormal;
-  scenario.budgets_spread = 0.5;
-  scenario.capacities = MassKind::lognormal;
-  scenario.capacities_spread = 0.5;
-  scenario.seed = options.seed;
-  return scenario;
-}
-
-double median(std::vector<double> values) {
-  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
-  std::sort(values.begin(), values.end());
-  const std::size_t h = values.size() / 2;
-  return values.size() % 2 ? values[h] : 0.5 * (values[h - 1] + values[h]);
-}
-
-std::vector<double> ranks(const std::vector<double>& values) {
-  std::vector<std::size_t> order(values.size());
-  std::iota(order.begin(), order.end(), 0);
-  std::sort(order.begin(), order.end(), [&](auto a, auto b) { return values[a] < values[b]; });
-  std::vector<double> rank(values.size());
-  for (std::size_t k = 0; k < order.size();) {
-    std::size_t end = k;
-    while (end + 1 < order.size() && values[order[end + 1]] == values[order[k]]) ++end;
-    for (std::size_t t = k; t <= end; ++t) rank[order[t]] = 0.5 * (k + end) + 1;  // ties: mean rank
-    k = end + 1;
-  }
-  return rank;
-}
-
-// Spearman's rho: Pearson correlation of the ranks.
-double spearman(const std::vector<double>& a, const std::vector<double>& b) {
-  if (a.size() < 2) return std::numeric_limits<double>::quiet_NaN();
-  const auto ra = ranks(a), rb = ranks(b);
-  const double n = static_cast<double>(a.size());
-  const double ma = std::accumulate(ra.begin(), ra.end(), 0.0) / n;
-  const double mb = std::accumulate(rb.begin(), rb.end(), 0.0) / n;
-  double sab = 0, saa = 0, sbb = 0;
-  for (std::size_t k = 0; k < ra.size(); ++k) {
-    sab += (ra[k] - ma) * (rb[k] - mb);
-    saa += (ra[k] - ma) * (ra[k] - ma);
-    sbb += (rb[k] - mb) * (rb[k] - mb);
-  }
-  return sab / std::sqrt(saa * sbb);
-}
-
-struct CaseScore {
-  std::string family;
-  double truth = 0, estimate = 0, relative_error = 0;
-  bool answered = false, has_interval = false, covered = false;
-};
-
-ScoreSummary summarise(const std::string& group, const std::vector<CaseScore>& cases) {
-  ScoreSummary s;
-  s.group = group;
-  std::vector<double> errors, truths, estimates;
-  for (const auto& c : cases) {
-    if (group != "all" && c.family != group) continue;
-    ++s.cases;
-    if (!c.answered) continue;
-    ++s.answered;
-    errors.push_back(c.relative_error);
-    truths.push_back(c.truth);
-    estimates.push_back(c.estimate);
-    if (c.has_interval) {
-      ++s.with_interval;
-      s.covered += c.covered;
-    }
-  }
-  const double n = static_cast<double>(errors.size());
-  double sum = 0, squares = 0;
-  std::vector<double> absolute;
-  for (const double e : errors) {
-    sum += e;
-    squares += e * e;
-    absolute.push_back(std::abs(e));
-  }
-  const double nan = std::numeric_limits<double>::quiet_NaN();
-  s.mean_relative_error = n > 0 ? sum / n : nan;
-  s.rms_relative_error = n > 0 ? std::sqrt(squares / n) : nan;
-  s.median_abs_relative_error = median(absolute);
-  s.coverage = s.with_interval ? static_cast<double>(s.covered) / s.with_interval : nan;
-  s.rank_correlation = spearman(truths, estimates);
+ScenarioOptions scenario_of(const BenchmarkCase& c, std::uint64_t seed) {
+  ScenarioOptions s;
+  s.agents = c.agents;
+  s.partners = c.partners;
+  s.gains = gains_kind_from_string(c.family);
+  s.budgets = c.budgets.kind;
+  s.budgets_exponent = c.budgets.parameter;
+  s.budgets_spread = c.budgets.parameter;
+  s.capacities = c.capacities.kind;
+  s.capacities_exponent = c.capacities.parameter;
+  s.capacities_spread = c.capacities.parameter;
+  s.seed = seed;
   return s;
 }
 
-// The case as CSV files and as one run of the inputs' results file.
-void write_inputs(const fs::path& folder, ResultsFile& h5, const std::string& name,
-                  const Matrix& allocation, const TransportProblem& problem) {
-  const fs::path case_folder = folder / "inputs" / name;
-  fs::create_directories(case_folder);
-  write_matrix_csv((case_folder / "allocation.csv").string(), allocation);
-  write_matrix_csv((case_folder / "gains.csv").string(), problem.gains);
-  RunWriter run = h5.create_run(name);
+std::string truth_header() {
+  return "case,family,source,misspecified,true_epsilon,units,agents,partners,budgets,capacities\n";
+}
+
+std::string readme_text(long cases, bool truth_here) {
+  std::ostringstream out;
+  out << "A benchmark set of " << cases << " allocations with a known transport temperature,\n"
+      << "written by `allocsim synth`. Estimate the transport temperature epsilon of each\n"
+      << "case from what this folder holds; the true values are kept apart.\n\n"
+      << "Cases are named case-0000, case-0001, ...; the names and their order are a random\n"
+      << "permutation and say nothing about a case. Cases differ in gains family, size\n"
+      << "(agents x partners), number of units, budgets and capacities, and in how the\n"
+      << "allocation was made.\n\n"
+      << "Files\n\n"
+      << "inputs/<case>/allocation.csv  the allocation: agents (rows) x partners (columns),\n"
+      << "                              whole units sent from agent i to partner j;\n"
+      << "                              numbers separated by commas, no labels\n"
+      << "inputs/<case>/gains.csv       gains_ij, what agent i earns per unit sent to partner j\n"
+      << "                              (higher is better); epsilon is in these units\n"
+      << "inputs/<case>/budgets.csv     budget of each agent, one value per line (total 1)\n"
+      << "inputs/<case>/capacities.csv  capacity of each partner, one value per line (total 1)\n"
+      << "inputs.h5                     the same, as an allocsim results file (HDF5, readable\n"
+      << "                              with h5py): /runs/<case>/allocation/total,\n"
+      << "                              /runs/<case>/scenario/gains, budgets, capacities;\n"
+      << "                              attributes of /runs/<case>: status, scenario.agents,\n"
+      << "                              scenario.partners, units_after_burn_in (the units of\n"
+      << "                              the allocation). `allocsim analyze inputs.h5 --json`\n"
+      << "                              and `allocsim inspect inputs.h5` read it.\n"
+      << "README.txt                    this description\n";
+  if (truth_here) {
+    out << "truth.csv                     the answer key (see below): remove it before handing\n"
+        << "                              the folder over, or write the set with --truth-dir\n";
+  }
+  out << "\nAnswers: a CSV file with a header row and the columns\n\n"
+      << "case      the case name\n"
+      << "epsilon   the estimate (gain units, >= 0; inf when no finite temperature explains the\n"
+      << "          allocation); empty to decline the case\n"
+      << "ci_low    (optional) lower end of an interval for epsilon\n"
+      << "ci_high   (optional) upper end; inf for an unbounded interval\n\n"
+      << "A case left out of the answers, or declined, counts as unanswered (not as an\n"
+      << "error). Score with\n"
+      << "  allocsim score --truth truth.csv --answers answers.csv [--out scores.h5]\n\n"
+      << "truth.csv columns: case; family (gains family); source (model: a multinomial\n"
+      << "sample from the entropic coupling at epsilon; price, gumbel, queue, learn: the\n"
+      << "sandbox's rules at choice temperature epsilon; mixed-noise: random utility with\n"
+      << "normal shocks, a probit choice); misspecified (true when the entropic coupling is\n"
+      << "not the mean of the source); true_epsilon; units (placed); agents; partners;\n"
+      << "budgets and capacities (the law each was drawn from).\n";
+  return out.str();
+}
+
+// A folder that must be new or empty; "" when fine.
+void require_new_folder(const fs::path& folder, const std::string& option) {
+  if (fs::exists(folder) && (!fs::is_directory(folder) || !fs::is_empty(folder))) {
+    throw InputError(option,
+                     folder.string() + " exists and is not an empty folder; give a new folder");
+  }
+}
+
+bool is_inside(const fs::path& inner, const fs::path& outer) {
+  const fs::path a = fs::weakly_canonical(inner), b = fs::weakly_canonical(outer);
+  auto ai = a.begin(), bi = b.begin();
+  for (; bi != b.end() && !bi->empty(); ++ai, ++bi) {
+    if (ai == a.end() || *ai != *bi) return false;
+  }
+  return true;
+}
+
+void write_vector_lines(const fs::path& path, const Vector& values) {
+  AtomicFile file(path.string());
+  for (long k = 0; k < values.size(); ++k) file.stream() << format_number(values[k]) << "\n";
+  file.commit();
+}
+
+// The case as one run group of inputs.h5 (the simulated-run layout); its
+// attributes tell nothing of the design.
+void write_case_run(ResultsFile& file, const BenchmarkCase& c, const TransportProblem& problem,
+                    const Matrix& allocation) {
+  RunWriter run = file.create_run(c.name);
+  run.set_text(layout::kStatus, layout::kStatusComplete);
+  run.set_integer("scenario.agents", c.agents);
+  run.set_integer("scenario.partners", c.partners);
+  run.set_number(layout::kUnitsAfterBurnIn, allocation.sum());
   run.write_scenario(problem);
   run.write_matrix(layout::kTotal, allocation);
 }
@@ -166,134 +164,126 @@ void BenchmarkOptions::validate() const {
     if (f == "file") throw InputError("--families", "'file' gains cannot be generated");
     gains_kind_from_string(f, "--families");
   }
-  if (epsilons.empty()) throw InputError("--epsilon", "give at least one value");
+  if (sources.empty()) throw InputError("--source", "name at least one source");
+  if (epsilon.kind == NumberLaw::Kind::grid && epsilon.values.empty())
+    throw InputError("--epsilon", "give at least one value");
+  if (units.kind == NumberLaw::Kind::grid && units.values.empty())
+    throw InputError("--units", "give at least one value");
+  const double least_units =
+      units.drawn() ? units.low : *std::min_element(units.values.begin(), units.values.end());
+  if (least_units < 1) throw InputError("--units", "'" + units.text + "' allows fewer than 1 unit");
+  if (budgets.empty()) throw InputError("--budgets", "name at least one law");
+  if (capacities.empty()) throw InputError("--capacities", "name at least one law");
+  if (cases < 0) throw InputError("--cases", "must be >= 0 (0: one per design cell and replicate)");
   if (replicates < 1) throw InputError("--replicates", "must be at least 1");
-  if (agents < 2 || partners < 2) throw InputError("--agents", "agents and partners must be >= 2");
-  if (units < 1) throw InputError("--units", "must be at least 1");
-  if (source != "model" && source != "price")
-    throw InputError("--source", "'" + source + "' is not one of model, price");
+  if (total_cases(*this, design_cells(*this)) > 1000000)
+    throw InputError(cases > 0 ? "--cases" : "--replicates", "more than a million cases");
 }
 
-long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions& options) {
+std::vector<BenchmarkCase> plan_benchmark_set(const BenchmarkOptions& options) {
   options.validate();
+  const long cells = design_cells(options);
+  const long total = total_cases(options, cells);
+  const long families = static_cast<long>(options.families.size());
+  const long sources = static_cast<long>(options.sources.size());
+  const std::vector<long> position = seeded_positions(total, options.seed);
+  std::vector<BenchmarkCase> cases(static_cast<std::size_t>(total));
+  for (long k = 0; k < total; ++k) {
+    const long cell = k % cells;
+    RandomStream rng(options.seed, static_cast<std::uint64_t>(k), StreamId::design);
+    BenchmarkCase c;
+    c.design_index = k;
+    c.name = case_name(position[static_cast<std::size_t>(k)], total);
+    c.family = options.families[static_cast<std::size_t>(cell % families)];
+    c.source = options.sources[static_cast<std::size_t>((cell / families) % sources)];
+    c.epsilon = options.epsilon.value(cell / (families * sources), rng);
+    c.units = std::max(1L, std::lround(options.units.value(k / cells, rng)));
+    c.agents = options.shape.agents.draw(rng);
+    c.partners = options.shape.partners.draw(rng);
+    c.budgets = options.budgets[static_cast<std::size_t>(rng.below(options.budgets.size()))];
+    c.capacities =
+        options.capacities[static_cast<std::size_t>(rng.below(options.capacities.size()))];
+    cases[static_cast<std::size_t>(position[static_cast<std::size_t>(k)])] = c;
+  }
+  return cases;
+}
+
+long write_benchmark_set(const std::string& folder_name, const std::string& truth_folder_name,
+                         const BenchmarkOptions& options, void (*progress)(long, long)) {
+  const std::vector<BenchmarkCase> cases = plan_benchmark_set(options);
   const fs::path folder = folder_name;
-  if (fs::exists(folder) && !fs::is_empty(folder)) {
-    throw InputError(folder_name, "exists and is not empty; give a new folder");
+  const fs::path truth_folder = truth_folder_name.empty() ? folder : fs::path(truth_folder_name);
+  const bool truth_apart = !truth_folder_name.empty();
+  require_new_folder(folder, "--out-dir");
+  if (truth_apart) {
+    if (is_inside(truth_folder, folder))
+      throw InputError("--truth-dir", truth_folder_name + " lies inside the set's folder " +
+                                          folder_name +
+                                          "; the truth must stay apart from the inputs");
+    if (fs::exists(truth_folder / "truth.csv"))
+      throw InputError("--truth-dir",
+                       (truth_folder / "truth.csv").string() + " exists; give another folder");
   }
-  fs::create_directories(folder);
-  // Inputs first, truth last: a set without truth.csv is unfinished.
-  const std::string h5_path = (folder / "inputs.h5").string();
+  // Everything goes to a temporary folder renamed onto the target at the end.
+  const fs::path temporary = temporary_name_for(fs::absolute(folder).lexically_normal().string());
+  std::error_code error;
+  fs::create_directories(temporary, error);
+  if (error)
+    throw InputError("--out-dir", folder_name + " cannot be created (" + error.message() + ")");
   std::ostringstream truth;
-  truth << "case,family,source,true_epsilon,units,agents,partners\n";
-  long k = 0;
-  {
-    ResultsFile h5(h5_path, "", "");
-    for (const auto& family : options.families) {
-      for (const auto& epsilon_text : options.epsilons) {
-        const double epsilon = std::stod(epsilon_text);
-        if (!(epsilon > 0)) throw InputError("--epsilon", "values must be > 0");
-        for (long r = 0; r < options.replicates; ++r, ++k) {
-          const TransportProblem problem =
-              make_scenario(scenario_for(options, family), static_cast<std::uint64_t>(k));
-          const Matrix allocation =
-              options.source == "model"
-                  ? model_allocation(problem, epsilon, options.units, options.seed, k)
-                  : price_rule_allocation(problem, epsilon, options.units, options.seed, k);
-          write_inputs(folder, h5, case_name(k), allocation, problem);
-          truth << case_name(k) << "," << family << "," << options.source << ","
-                << format_number(epsilon) << "," << format_number(allocation.sum()) << ","
-                << options.agents << "," << options.partners << "\n";
+  truth << truth_header();
+  try {
+    {
+      ResultsFile h5((temporary / "inputs.h5").string(),
+                     "# inputs of a benchmark set written by allocsim synth: " +
+                         std::to_string(cases.size()) + " cases; the truth is kept apart\n",
+                     options.tool_version);
+      long done = 0;
+      for (const BenchmarkCase& c : cases) {
+        const TransportProblem problem =
+            make_scenario(scenario_of(c, options.seed), static_cast<std::uint64_t>(c.design_index));
+        Matrix allocation;
+        try {
+          allocation =
+              draw_benchmark_allocation(problem, c.source, c.epsilon, c.units, options.seed,
+                                        static_cast<std::uint64_t>(c.design_index));
+        } catch (const std::runtime_error& e) {
+          throw std::runtime_error(c.name + ": " + e.what());
         }
+        const fs::path case_folder = temporary / "inputs" / c.name;
+        fs::create_directories(case_folder);
+        write_matrix_csv((case_folder / "allocation.csv").string(), allocation);
+        write_matrix_csv((case_folder / "gains.csv").string(), problem.gains);
+        write_vector_lines(case_folder / "budgets.csv", problem.budgets);
+        write_vector_lines(case_folder / "capacities.csv", problem.capacities);
+        write_case_run(h5, c, problem, allocation);
+        truth << c.name << "," << c.family << "," << to_string(c.source) << ","
+              << (is_misspecified(c.source) ? "true" : "false") << "," << format_number(c.epsilon)
+              << "," << format_number(allocation.sum()) << "," << c.agents << "," << c.partners
+              << "," << c.budgets.text() << "," << c.capacities.text() << "\n";
+        if (progress) progress(++done, static_cast<long>(cases.size()));
       }
+      h5.commit();
     }
-    h5.commit();
+    {
+      std::ofstream readme(temporary / "README.txt");
+      readme << readme_text(static_cast<long>(cases.size()), !truth_apart);
+      if (!readme) throw InputError("--out-dir", "README.txt cannot be written");
+    }
+    if (fs::exists(folder)) fs::remove(folder);  // empty (checked above)
+    fs::rename(temporary, folder);
+  } catch (...) {
+    fs::remove_all(temporary, error);
+    throw;
   }
-  AtomicFile truth_file((folder / "truth.csv").string());
+  fs::create_directories(truth_folder, error);
+  if (error)
+    throw InputError("--truth-dir",
+                     truth_folder_name + " cannot be created (" + error.message() + ")");
+  AtomicFile truth_file((truth_folder / "truth.csv").string());
   truth_file.stream() << truth.str();
   truth_file.commit();
-  return k;
-}
-
-ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
-  const std::size_t t_case = truth.column("case"), t_family = truth.column("family"),
-                    t_epsilon = truth.column("true_epsilon");
-  const std::size_t a_case = answers.column("case"), a_epsilon = answers.column("epsilon");
-  const bool intervals = answers.has_column("ci_low") && answers.has_column("ci_high");
-  std::map<std::string, std::size_t> answer_row;
-  for (std::size_t r = 0; r < answers.rows.size(); ++r) {
-    if (!answer_row.emplace(answers.rows[r][a_case], r).second) {
-      throw InputError(location(answers.path, answers.lines[r]),
-                       "answers case " + answers.rows[r][a_case] + " twice");
-    }
-  }
-  std::vector<CaseScore> cases;
-  ScoreReport report;
-  report.per_case.header = {"case", "family", "true_epsilon", "epsilon", "relative_error", "covered"};
-  for (std::size_t r = 0; r < truth.rows.size(); ++r) {
-    CaseScore c;
-    c.family = truth.rows[r][t_family];
-    c.truth = truth.number(r, t_epsilon);
-    const auto found = answer_row.find(truth.rows[r][t_case]);
-    std::vector<std::string> row = {truth.rows[r][t_case], c.family, format_number(c.truth), "", "", ""};
-    if (found != answer_row.end()) {
-      const std::size_t a = found->second;
-      c.answered = true;
-      c.estimate = answers.number(a, a_epsilon);
-      c.relative_error = (c.estimate - c.truth) / c.truth;
-      row[3] = format_number(c.estimate);
-      row[4] = format_number(c.relative_error);
-      if (intervals) {
-        const std::string& high = answers.rows[a][answers.column("ci_high")];
-        const double low = answers.number(a, answers.column("ci_low"));
-        const double upper = (high == "inf" || high == "") ? INFINITY : answers.number(a, answers.column("ci_high"));
-        c.has_interval = true;
-        c.covered = low <= c.truth && c.truth <= upper;
-        row[5] = c.covered ? "true" : "false";
-      }
-      answer_row.erase(found);
-    }
-    report.per_case.rows.push_back(row);
-    cases.push_back(c);
-  }
-  if (!answer_row.empty()) {
-    throw InputError(answers.path, "answers case '" + answer_row.begin()->first +
-                                       "', which the truth does not hold (wrong benchmark set?)");
-  }
-  std::vector<std::string> families;
-  for (const auto& c : cases)
-    if (std::find(families.begin(), families.end(), c.family) == families.end())
-      families.push_back(c.family);
-  for (const auto& f : families) report.summaries.push_back(summarise(f, cases));
-  report.summaries.push_back(summarise("all", cases));
-  return report;
-}
-
-JsonObject ScoreReport::json() const {
-  JsonObject json;
-  for (const auto& s : summaries) {
-    JsonObject group;
-    group.add("cases", static_cast<long long>(s.cases)).add("answered", static_cast<long long>(s.answered))
-        .add("mean_relative_error", s.mean_relative_error)
-        .add("rms_relative_error", s.rms_relative_error)
-        .add("median_abs_relative_error", s.median_abs_relative_error)
-        .add("coverage", s.coverage).add("with_interval", static_cast<long long>(s.with_interval))
-        .add("rank_correlation", s.rank_correlation);
-    json.add(s.group, group);
-  }
-  return json;
-}
-
-std::string ScoreReport::text() const {
-  std::ostringstream out;
-  out << "group             cases  answered  bias (mean rel.)  RMS rel.  median |rel.|  coverage  Spearman\n";
-  for (const auto& s : summaries) {
-    char line[200];
-    std::snprintf(line, sizeof line, "%-16s  %5ld  %8ld  %+16.4f  %8.4f  %13.4f  %8.3f  %8.3f\n",
-                  s.group.c_str(), s.cases, s.answered, s.mean_relative_error, s.rms_relative_error,
-                  s.median_abs_relative_error, s.coverage, s.rank_correlation);
-    out << line;
-  }
-  return out.str();
+  return static_cast<long>(cases.size());
 }
 
 }  // namespace allocsim

@@ -92,39 +92,86 @@ double quantile(const std::vector<double>& sorted, double q) {
   return sorted[below] + (at - static_cast<double>(below)) * (sorted[above] - sorted[below]);
 }
 
-EstimatorScores estimator_scores(const std::vector<RunRecord>& runs) {
-  struct Cases {
-    std::vector<double> relative_errors;
-    long covered = 0, with_interval = 0;
-  };
-  std::map<std::string, std::map<double, Cases>> sets;
-  for (const auto& run : runs) {
-    const auto truth = run.number(kTrueEpsilonKey);
-    const auto estimate = run.number(layout::kEpsilon);
-    if (!truth || !estimate || !(*truth > 0) || !std::isfinite(*estimate)) continue;
-    Cases& cases = sets[run.text(kBenchmarkSetKey).value_or("all cases")][*truth];
-    cases.relative_errors.push_back((*estimate - *truth) / *truth);
-    const auto low = run.number(layout::kEpsilonCiLow), high = run.number(layout::kEpsilonCiHigh);
-    if (low && high) {
-      ++cases.with_interval;
-      cases.covered += (*low <= *truth && *truth <= *high);
-    }
+namespace {
+
+// Band 1..5 of each value: 1 + the number of quintile edges below it.
+std::vector<int> quintile_bands(const std::vector<double>& values) {
+  std::vector<double> sorted = values;
+  std::sort(sorted.begin(), sorted.end());
+  std::vector<double> edges;
+  for (int k = 1; k < 5; ++k) edges.push_back(quantile(sorted, k / 5.0));
+  std::vector<int> bands;
+  for (const double v : values) {
+    int band = 1;
+    for (const double edge : edges) band += v > edge;
+    bands.push_back(band);
   }
-  EstimatorScores figure;
-  figure.title = "temperature estimator on benchmark sets";
-  for (auto& [label, by_truth] : sets) {
-    BenchmarkSeries series{label, {}};
-    for (auto& [truth, cases] : by_truth) {
-      std::vector<double>& errors = cases.relative_errors;
-      std::sort(errors.begin(), errors.end());
-      const double coverage =
-          cases.with_interval ? double(cases.covered) / double(cases.with_interval) : kNoValue;
-      series.scores.push_back({truth, quantile(errors, 0.5), quantile(errors, 0.25),
-                               quantile(errors, 0.75), coverage, static_cast<long>(errors.size())});
+  return bands;
+}
+
+// Coverage per band of the cases whose group is `group` (all when empty).
+void add_coverage_bands(const std::string& axis, const std::vector<int>& bands, const std::vector<int>& covered,
+                        const std::vector<std::string>& groups, const std::string& group,
+                        EstimatorScoreCard& card) {
+  for (int band = 1; band <= 5; ++band) {
+    CoverageBand b{group.empty() ? axis : axis + " (" + group + ")", band, kNoValue, 0};
+    long hits = 0;
+    for (std::size_t k = 0; k < bands.size(); ++k) {
+      if (bands[k] != band || covered[k] < 0 || (!group.empty() && groups[k] != group)) continue;
+      ++b.intervals;
+      hits += covered[k];
     }
-    figure.sets.push_back(series);
+    if (b.intervals > 0) b.coverage = static_cast<double>(hits) / static_cast<double>(b.intervals);
+    card.bands.push_back(b);
   }
-  return figure;
+}
+
+int source_rank(const std::string& source) {
+  static const std::vector<std::string> order = {"model", "price", "gumbel", "queue", "learn", "mixed-noise"};
+  return static_cast<int>(std::find(order.begin(), order.end(), source) - order.begin());
+}
+
+}  // namespace
+
+EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records) {
+  EstimatorScoreCard card;
+  card.title = "temperature estimator on a benchmark set";
+  std::vector<double> truths, units;
+  std::vector<int> covered;  // 1, 0, or -1 without an interval
+  std::vector<std::string> specification;
+  bool units_known = true, misspecified = false;
+  for (const auto& r : records) {
+    const auto truth = r.number(layout::kTrueEpsilonColumn);
+    if (!truth || !(*truth > 0) || !std::isfinite(*truth)) continue;
+    ScoredEstimate e;
+    e.true_epsilon = *truth;
+    e.estimate = r.number(layout::kEpsilon).value_or(kNoValue);
+    e.units = r.number(layout::kUnitsColumn).value_or(r.number(layout::kUnitsAfterBurnIn).value_or(kNoValue));
+    e.series = r.text(layout::kSourceColumn).value_or(r.text(layout::kFamilyColumn).value_or("all cases"));
+    const double low = r.number(layout::kEpsilonCiLow).value_or(kNoValue);
+    const double high = r.number(layout::kEpsilonCiHigh).value_or(kNoValue);
+    const bool interval = !std::isnan(e.estimate) && !std::isnan(low) && !std::isnan(high);
+    covered.push_back(interval ? (low <= *truth && *truth <= high ? 1 : 0) : -1);
+    truths.push_back(*truth);
+    units.push_back(e.units);
+    const bool off_model = r.number(layout::kMisspecifiedColumn).value_or(0) == 1;
+    misspecified = misspecified || off_model;
+    specification.push_back(off_model ? "misspecified" : "entropic model true");
+    units_known = units_known && std::isfinite(e.units);
+    card.cases.push_back(e);
+  }
+  if (card.cases.empty()) return card;
+  // Coverage apart for the cases whose source has the entropic model as its mean and the others.
+  const std::vector<std::string> groups =
+      misspecified ? std::vector<std::string>{"entropic model true", "misspecified"} : std::vector<std::string>{""};
+  for (const auto& group : groups) {
+    add_coverage_bands("true epsilon", quintile_bands(truths), covered, specification, group, card);
+    if (units_known) add_coverage_bands("units", quintile_bands(units), covered, specification, group, card);
+  }
+  std::stable_sort(card.cases.begin(), card.cases.end(), [](const ScoredEstimate& a, const ScoredEstimate& b) {
+    return source_rank(a.series) < source_rank(b.series);
+  });
+  return card;
 }
 
 void marginal_errors(const Vector& budgets, const Vector& capacities, long count,

@@ -199,13 +199,17 @@ void draw_distances(PlotContext& context, const std::vector<RunRecord>& runs) {
                "or kl_divergence) at two or more temperatures");
 }
 
-void draw_scores(PlotContext& context, const std::vector<RunRecord>& runs) {
-  const EstimatorScores figure = estimator_scores(runs);
-  if (figure.sets.empty()) {
+void draw_scores(PlotContext& context, const std::vector<RunRecord>& records) {
+  const EstimatorScoreCard figure = estimator_score_card(records);
+  const bool answered = std::any_of(figure.cases.begin(), figure.cases.end(), [](const ScoredEstimate& e) {
+    return e.estimate > 0 && std::isfinite(e.estimate);
+  });
+  if (!answered) {
     return context.skip("estimator scores",
-                        "no benchmark cases (runs with true_epsilon and an epsilon estimate)");
+                        "no benchmark cases (rows with true_epsilon and a positive finite epsilon; "
+                        "see allocsim score --out scores.h5)");
   }
-  context.record(draw_estimator_scores(figure, context.stem("estimator-scores"), context.options));
+  context.record(draw_estimator_score_card(figure, context.stem("estimator-scores"), context.options));
 }
 
 // The run with the smallest run_index (else the first by name), or `wanted`.
@@ -229,12 +233,20 @@ std::vector<std::string> draw_results_figures(const ResultsReader& reader,
                                               const ResultsFiguresRequest& request,
                                               std::ostream& notes) {
   const std::vector<RunRecord> runs = read_run_records(reader);
-  if (runs.empty()) throw InputError(reader.path(), "holds no runs");
-  const RunRecord& chosen = chosen_run(runs, request.run, reader.path());
+  const std::vector<RunRecord> rows = runs.empty() ? read_summary_records(reader) : std::vector<RunRecord>{};
+  const bool scores_only = runs.empty() && !estimator_score_card(rows).cases.empty();
+  if (runs.empty() && !scores_only) throw InputError(reader.path(), "holds no runs");
+  if (scores_only && !request.run.empty())
+    throw InputError("--run", reader.path() + " holds scores of a benchmark set, no runs");
   std::error_code error;
   std::filesystem::create_directories(request.out_dir, error);
   if (error) throw InputError(request.out_dir, "cannot be created (" + error.message() + ")");
   PlotContext context{request, notes, {}};
+  if (scores_only) {  // a scores file (allocsim score --out scores.h5): one row per case
+    draw_scores(context, rows);
+    return context.written;
+  }
+  const RunRecord& chosen = chosen_run(runs, request.run, reader.path());
   draw_heatmaps(context, reader, chosen);
   draw_trajectories(context, reader, chosen);
   draw_metric(context, runs, layout::kNodf, "NODF");

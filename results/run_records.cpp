@@ -1,5 +1,6 @@
 #include "allocsim/results/run_records.hpp"
 
+#include <algorithm>
 #include <variant>
 
 #include "allocsim/results/layout.hpp"
@@ -62,6 +63,25 @@ std::vector<RunRecord> read_run_records(const ResultsReader& reader) {
     records.push_back(std::move(record));
   }
   add_summary(reader, records);
+  return records;
+}
+
+std::vector<RunRecord> read_summary_records(const ResultsReader& reader) {
+  const auto numbers = reader.summary_numbers();
+  const auto texts = reader.summary_texts();
+  std::size_t rows = 0;
+  for (const auto& column : numbers) rows = std::max(rows, column.second.size());
+  for (const auto& column : texts) rows = std::max(rows, column.second.size());
+  std::vector<RunRecord> records(rows);
+  for (std::size_t row = 0; row < rows; ++row) {
+    for (const auto& [column, values] : numbers)
+      if (row < values.size()) records[row].numbers.emplace(column, values[row]);
+    for (const auto& [column, values] : texts)
+      if (row < values.size()) records[row].texts.emplace(column, values[row]);
+    const auto name = records[row].text(layout::kRunColumn);
+    const auto case_name = records[row].text(layout::kCaseColumn);
+    records[row].name = name ? *name : case_name ? *case_name : std::to_string(row);
+  }
   return records;
 }
 

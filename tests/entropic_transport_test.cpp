@@ -10,9 +10,9 @@ using namespace allocsim;
 
 namespace {
 
-constexpr double kTolerance = 1e-10;        // marginal violation asked of the solver
-constexpr double kCouplingAgreement = 1e-8; // max |pi - reference| for unit mass
-constexpr std::uint64_t kSeed = 20261201;   // printed by the randomised tests
+constexpr double kTolerance = 1e-10;         // marginal violation asked of the solver
+constexpr double kCouplingAgreement = 1e-8;  // max |pi - reference| for unit mass
+constexpr std::uint64_t kSeed = 20261201;    // printed by the randomised tests
 
 TransportProblem random_problem(int n, int m, std::mt19937_64& rng, bool unit_mass = true) {
   std::uniform_real_distribution<double> uniform(0.0, 1.0);
@@ -119,9 +119,10 @@ TEST_CASE("primal value equals dual value and the marginals are met") {
     CHECK(marginal_violation(p, result.coupling) <= 2 * kTolerance);
     CHECK(result.primal_value == Approx(result.dual_value).epsilon(1e-8).margin(1e-9));
     // The coupling has the Gibbs form of the stated potentials.
-    const Matrix gibbs =
-        (((p.gains.array().colwise() + result.potentials.agent.array()).rowwise() +
-          result.potentials.partner.transpose().array()) / eps).exp();
+    const Matrix gibbs = (((p.gains.array().colwise() + result.potentials.agent.array()).rowwise() +
+                           result.potentials.partner.transpose().array()) /
+                          eps)
+                             .exp();
     CHECK((gibbs - result.coupling).cwiseAbs().maxCoeff() <= 1e-10 * p.total_mass());
   }
 }
@@ -196,4 +197,29 @@ TEST_CASE("two threads give the same coupling as one") {
   REQUIRE(two.converged());
   CHECK(two.iterations == one.iterations);
   CHECK((two.coupling - one.coupling).cwiseAbs().maxCoeff() < 1e-14);
+}
+
+TEST_CASE("the coupling is bit-identical for 1, 2 and 3 threads") {
+  // Rows are split in the same chunks whatever the threads, and every sum
+  // is taken in chunk order, so the threads change nothing, not even the
+  // last bit; 203 rows leave a remainder below the blocks of four rows.
+  std::mt19937_64 rng(kSeed + 8);
+  const TransportProblem p = random_problem(203, 75, rng);
+  EntropicOptions options;
+  options.epsilon = 0.003;
+  options.tolerance = kTolerance;
+  options.parallel_cells = 0;  // threads even for a small problem
+  const EntropicResult one = solve_entropic(p, options);
+  REQUIRE(one.converged());
+  for (int threads : {2, 3}) {
+    INFO(threads << " threads");
+    options.threads = threads;
+    const EntropicResult many = solve_entropic(p, options);
+    CHECK(many.iterations == one.iterations);
+    CHECK(many.coupling == one.coupling);
+    CHECK(many.potentials.agent == one.potentials.agent);
+    CHECK(many.total_gain == one.total_gain);
+  }
+  options.parallel_cells = -1;
+  CHECK_THROWS_WITH(options.validate(), Catch::Contains("parallel_cells"));
 }

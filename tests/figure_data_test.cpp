@@ -3,6 +3,7 @@
 #include "allocsim/plots/figure_data.hpp"
 
 #include <catch2/catch.hpp>
+#include <algorithm>
 #include <cmath>
 
 #include "allocsim/results/layout.hpp"
@@ -46,24 +47,41 @@ TEST_CASE("a metric against temperature takes its null band from mean and sd") {
   CHECK(figure.null_name == "curveball null model");
 }
 
-TEST_CASE("estimator scores group cases by set and truth, with coverage") {
-  std::vector<RunRecord> runs;
-  for (int k = 0; k < 4; ++k) {
-    RunRecord r{"case" + std::to_string(k), {}, {{kBenchmarkSetKey, "random"}}};
-    r.numbers[kTrueEpsilonKey] = 0.1;
-    const double estimate = 0.1 * (1 + 0.1 * (k - 1));  // errors -10%, 0, +10%, +20%
-    r.numbers[layout::kEpsilon] = estimate;
-    r.numbers[layout::kEpsilonCiLow] = 0.95 * estimate;
-    r.numbers[layout::kEpsilonCiHigh] = 1.05 * estimate;
-    runs.push_back(r);
+TEST_CASE("an estimator score card bands the cases by quintile of the truth, with coverage") {
+  std::vector<RunRecord> rows;
+  for (int k = 0; k < 10; ++k) {
+    RunRecord r{"case-" + std::to_string(k), {}, {{layout::kSourceColumn, k < 5 ? "model" : "queue"}}};
+    r.numbers[layout::kTrueEpsilonColumn] = 0.01 * (k + 1);
+    r.numbers[layout::kUnitsColumn] = 1000;
+    if (k != 9) r.numbers[layout::kEpsilon] = 0.01 * (k + 1) * 1.1;  // case 9 unanswered
+    if (k < 8) {  // intervals from +5% to +15% of the truth miss it, except case 1's
+      r.numbers[layout::kEpsilonCiLow] = k == 1 ? 0.0 : 0.01 * (k + 1) * 1.05;
+      r.numbers[layout::kEpsilonCiHigh] = k == 0 ? INFINITY : 0.01 * (k + 1) * 1.15;
+    }
+    rows.push_back(r);
   }
-  const EstimatorScores scores = estimator_scores(runs);
-  REQUIRE(scores.sets.size() == 1);
-  REQUIRE(scores.sets[0].scores.size() == 1);
-  const BenchmarkScore& s = scores.sets[0].scores[0];
-  CHECK(s.cases == 4);
-  CHECK(s.median_relative_error == Approx(0.05));
-  CHECK(s.coverage == Approx(0.25));  // only the exact answer's interval covers 0.1
+  const EstimatorScoreCard card = estimator_score_card(rows);
+  REQUIRE(card.cases.size() == 10);
+  CHECK(std::isnan(card.cases[9].estimate));
+  CHECK(card.cases[0].series == "model");
+  CHECK(card.cases[9].series == "queue");
+  // Quintile edges of 0.01..0.10 (numpy's linear quantiles): 0.028, 0.046, 0.064, 0.082,
+  // so two cases per band.
+  std::vector<CoverageBand> by_truth;
+  for (const auto& b : card.bands)
+    if (b.axis == "true epsilon") by_truth.push_back(b);
+  REQUIRE(by_truth.size() == 5);
+  CHECK(by_truth[0].intervals == 2);
+  CHECK(by_truth[0].coverage == Approx(0.5));  // case 1 covers, case 0 does not
+  CHECK(by_truth[1].coverage == Approx(0.0));
+  CHECK(by_truth[4].intervals == 0);  // case 8 has no interval, case 9 no answer
+  CHECK(std::isnan(by_truth[4].coverage));
+  // Equal units: every case in band 1.
+  const auto units_band = std::find_if(card.bands.begin(), card.bands.end(), [](const CoverageBand& b) {
+    return b.axis == "units" && b.band == 1;
+  });
+  REQUIRE(units_band != card.bands.end());
+  CHECK(units_band->intervals == 8);
 }
 
 TEST_CASE("marginal errors are the L1 distances of each snapshot's shares to the targets") {

@@ -119,14 +119,16 @@ Trajectories sample_trajectories() {
   return figure;
 }
 
-EstimatorScores sample_scores() {
-  EstimatorScores figure;
-  figure.title = "estimator on benchmark sets";
-  for (const std::string family : {"random gains", "trait-distance gains"}) {
-    BenchmarkSeries series{family, {}};
-    for (const double e : {0.01, 0.1, 1.0}) series.scores.push_back({e, 0.02, -0.05, 0.08, 0.94, 100});
-    figure.sets.push_back(series);
+EstimatorScoreCard sample_score_card() {
+  EstimatorScoreCard figure;
+  figure.title = "estimator on a benchmark set";
+  for (int k = 0; k < 40; ++k) {
+    const double truth = 0.01 * std::pow(100.0, k / 39.0);
+    const double estimate = k == 7 ? INFINITY : truth * (1 + 0.05 * std::sin(k));
+    figure.cases.push_back({truth, estimate, 200.0 * (1 + k), k % 2 ? "model" : "queue"});
   }
+  for (const std::string axis : {"true epsilon", "units"})
+    for (int band = 1; band <= 5; ++band) figure.bands.push_back({axis, band, 0.9 + 0.01 * band, 8});
   return figure;
 }
 
@@ -139,7 +141,7 @@ std::vector<std::string> draw_all(const TemporaryFolder& folder, const FigureOpt
   DistanceAgainstTemperature distance{"distance to couplings", "KL divergence", sample_points(), sample_points()};
   for (auto& p : distance.to_exact) p.y *= 10;
   Trajectories trajectories = sample_trajectories();
-  EstimatorScores scores = sample_scores();
+  EstimatorScoreCard scores = sample_score_card();
   if (!text.empty()) {
     heatmaps.title = heatmaps.panels[0].title = text;
     heatmaps.row_labels.assign(12, text);
@@ -150,14 +152,14 @@ std::vector<std::string> draw_all(const TemporaryFolder& folder, const FigureOpt
     trajectories.title = text;
     trajectories.prices.resize(3);
     trajectories.partner_labels.assign(3, text);
-    scores.title = scores.sets[0].label = text;
+    scores.title = scores.cases[0].series = scores.bands[0].axis = text;
   }
   return {draw_allocation_heatmaps(heatmaps, folder.stem("heatmaps"), options),
           draw_metric_against_temperature(metric, folder.stem("metric"), options),
           draw_temperature_recovery(recovery, folder.stem("recovery"), options),
           draw_distance_against_temperature(distance, folder.stem("distance"), options),
           draw_trajectories(trajectories, folder.stem("trajectories"), options),
-          draw_estimator_scores(scores, folder.stem("scores"), options)};
+          draw_estimator_score_card(scores, folder.stem("scores"), options)};
 }
 
 const std::vector<std::string> kHostileLabels = {
@@ -238,7 +240,7 @@ TEST_CASE("every figure writes a valid PNG of the default size", "[figures]") {
   TemporaryFolder folder("png");
   const std::vector<std::string> written = draw_all(folder, {});
   const std::vector<std::pair<unsigned, unsigned>> sizes = {{1360, 640}, {1000, 700}, {900, 800},
-                                                             {1000, 700}, {1000, 800}, {1300, 650}};
+                                                             {1000, 700}, {1000, 800}, {1400, 1100}};
   REQUIRE(written.size() == sizes.size());
   for (std::size_t k = 0; k < written.size(); ++k) {
     INFO(written[k]);
@@ -347,5 +349,7 @@ TEST_CASE("unusable figure data is refused with a reason", "[figures]") {
   CHECK_THROWS_WITH(draw_allocation_heatmaps(heatmaps, folder.stem("h")), Catch::Contains("permutation"));
   CHECK_THROWS_AS(draw_temperature_recovery({"t", {{1, 0}, {2, kNoValue}}}, folder.stem("r")), InputError);
   CHECK_THROWS_AS(draw_metric_against_temperature({}, folder.stem("m")), InputError);
+  CHECK_THROWS_WITH(draw_estimator_score_card({"s", {{0.1, kNoValue, 100, "a"}}, {}}, folder.stem("s")),
+                    Catch::Contains("no answered case"));
   CHECK(fs::directory_iterator(folder.path) == fs::directory_iterator());
 }

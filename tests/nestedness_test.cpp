@@ -4,11 +4,13 @@
 #include <catch2/catch.hpp>
 #include <chrono>
 #include <fstream>
+#include <functional>
 #include <iostream>
 #include <numeric>
 #include <random>
 #include <sstream>
 #include <string>
+#include <tuple>
 #include <vector>
 
 #include "allocsim/core/csv.hpp"
@@ -280,4 +282,108 @@ TEST_CASE("NODF, WNODF and spectral radius timings on 1000 x 1000", "[.][timing]
   std::cout << "1000x1000 density 0.3: NODF " << n << " in " << n_ms << " ms; WNODF " << w << " in "
             << w_ms << " ms; spectral radius " << s << " in " << s_ms << " ms\n";
   CHECK(n > 0);
+}
+
+namespace {
+
+// NODF by degree pair by pair, straight from the definition: every pair of
+// unequal degrees counts, with the fuller member above. Parts as fractions.
+NestednessParts naive_nodf_by_degree(const BinaryMatrix& m) {
+  const auto part = [](const Eigen::MatrixXi& a) {
+    double sum = 0;
+    const Eigen::VectorXi degree = a.rowwise().sum();
+    for (Eigen::Index x = 0; x < a.rows(); ++x)
+      for (Eigen::Index y = x + 1; y < a.rows(); ++y) {
+        const int lower = std::min(degree[x], degree[y]);
+        if (degree[x] == degree[y] || lower == 0) continue;
+        sum += 100.0 * (a.row(x).array() * a.row(y).array()).sum() / lower;
+      }
+    return sum;
+  };
+  const Eigen::MatrixXi a = m.cast<int>();
+  const double rows = part(a), columns = part(a.transpose());
+  const double row_pairs = 0.5 * m.rows() * (m.rows() - 1);
+  const double column_pairs = 0.5 * m.cols() * (m.cols() - 1);
+  return {row_pairs > 0 ? rows / row_pairs : 0, column_pairs > 0 ? columns / column_pairs : 0,
+          (rows + columns) / (row_pairs + column_pairs)};
+}
+
+// WNODF by fill pair by pair: for fills F_a > F_b > 0, the share of b's
+// non-zero cells strictly below a's.
+NestednessParts naive_wnodf_by_fill(const Matrix& w) {
+  const auto part = [](const Eigen::MatrixXd& a) {
+    double sum = 0;
+    const Eigen::VectorXi fill = (a.array() > 0).cast<int>().rowwise().sum();
+    for (Eigen::Index x = 0; x < a.rows(); ++x)
+      for (Eigen::Index y = x + 1; y < a.rows(); ++y) {
+        if (fill[x] == fill[y] || std::min(fill[x], fill[y]) == 0) continue;
+        const Eigen::Index upper = fill[x] > fill[y] ? x : y, lower = upper == x ? y : x;
+        int below = 0;
+        for (Eigen::Index l = 0; l < a.cols(); ++l)
+          below += a(lower, l) > 0 && a(lower, l) < a(upper, l);
+        sum += 100.0 * below / fill[lower];
+      }
+    return sum;
+  };
+  const Eigen::MatrixXd a = w;
+  const double rows = part(a), columns = part(a.transpose());
+  const double row_pairs = 0.5 * w.rows() * (w.rows() - 1);
+  const double column_pairs = 0.5 * w.cols() * (w.cols() - 1);
+  return {row_pairs > 0 ? rows / row_pairs : 0, column_pairs > 0 ? columns / column_pairs : 0,
+          (rows + columns) / (row_pairs + column_pairs)};
+}
+
+// Random matrices with many equal degrees and a few empty rows and columns.
+void empty_some(Eigen::Index n, Eigen::Index m, std::mt19937_64& rng,
+                const std::function<void(Eigen::Index, Eigen::Index)>& clear) {
+  std::uniform_int_distribution<Eigen::Index> row(0, n - 1), column(0, m - 1);
+  for (int k = 0; k < 3; ++k) {
+    const Eigen::Index i = row(rng), j = column(rng);
+    for (Eigen::Index l = 0; l < m; ++l) clear(i, l);
+    for (Eigen::Index l = 0; l < n; ++l) clear(l, j);
+  }
+}
+
+constexpr double kSameSum = 1e-10;  // the fast sums regroup the same terms
+
+}  // namespace
+
+TEST_CASE("by-degree NODF equals the pair-by-pair definition with ties and empty rows") {
+  for (std::uint64_t seed : {11u, 12u, 13u, 14u}) {
+    for (const auto& [n, m, density] :
+         {std::tuple<int, int, double>{9, 7, 0.5}, {37, 130, 0.3}, {64, 65, 0.05}, {70, 20, 0.9}}) {
+      INFO("seed " << seed << ", " << n << " x " << m << ", density " << density);
+      BinaryMatrix links = random_links(n, m, density, seed);
+      std::mt19937_64 rng(seed);
+      empty_some(n, m, rng, [&](Eigen::Index i, Eigen::Index j) { links(i, j) = 0; });
+      const NestednessParts fast = nodf(links), naive = naive_nodf_by_degree(links);
+      CHECK_THAT(fast.rows, WithinAbs(naive.rows, kSameSum));
+      CHECK_THAT(fast.columns, WithinAbs(naive.columns, kSameSum));
+      CHECK_THAT(fast.total, WithinAbs(naive.total, kSameSum));
+    }
+  }
+}
+
+TEST_CASE("by-degree WNODF equals the pair-by-pair definition with ties and empty rows") {
+  for (std::uint64_t seed : {21u, 22u, 23u}) {
+    for (const auto& [n, m, levels] :
+         {std::tuple<int, int, int>{8, 6, 2}, {40, 90, 3}, {65, 30, 0}, {20, 200, 5}}) {
+      INFO("seed " << seed << ", " << n << " x " << m << ", levels " << levels);
+      std::mt19937_64 rng(seed);
+      // levels > 0: whole numbers 0..levels (many equal weights); 0: continuous.
+      std::uniform_int_distribution<int> count(0, std::max(levels, 1));
+      std::uniform_real_distribution<double> share(0.0, 1.0);
+      Matrix w(n, m);
+      for (Eigen::Index i = 0; i < n; ++i)
+        for (Eigen::Index j = 0; j < m; ++j) {
+          const double u = share(rng);
+          w(i, j) = levels > 0 ? count(rng) : (u < 0.4 ? 0.0 : u);
+        }
+      empty_some(n, m, rng, [&](Eigen::Index i, Eigen::Index j) { w(i, j) = 0; });
+      const NestednessParts fast = wnodf(w), naive = naive_wnodf_by_fill(w);
+      CHECK_THAT(fast.rows, WithinAbs(naive.rows, kSameSum));
+      CHECK_THAT(fast.columns, WithinAbs(naive.columns, kSameSum));
+      CHECK_THAT(fast.total, WithinAbs(naive.total, kSameSum));
+    }
+  }
 }

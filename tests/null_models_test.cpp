@@ -5,6 +5,7 @@
 #include <cmath>
 #include <iostream>
 #include <map>
+#include <mutex>
 #include <random>
 #include <string>
 #include <vector>
@@ -379,4 +380,66 @@ TEST_CASE("null sampler speed on 100 x 100", "[.][timing]") {
               << sampler.description() << ")\n";
     CHECK(guard >= 0);
   }
+}
+
+TEST_CASE("null values are the same for 1, 2 and 3 threads, and with several metrics at once") {
+  // The samples are drawn in order from the seed whatever the threads do, so
+  // every metric value must be bit-identical (not merely close).
+  const Matrix observed =
+      read_matrix_csv(std::string(ALLOCSIM_TEST_DATA) + "/structure_nested_25x20.csv").values;
+  const MetricFunction nodf_metric = [](const Matrix& m) {
+    return nodf(m.cast<std::uint8_t>()).total;
+  };
+  const MetricFunction wnodf_metric = [](const Matrix& m) { return wnodf(m).total; };
+  const MetricFunction sample_sum = [](const Matrix& m) {
+    double weighted = 0;  // position-weighted: tells samples apart
+    for (Eigen::Index k = 0; k < m.size(); ++k) weighted += m.data()[k] * static_cast<double>(k);
+    return weighted;
+  };
+  for (NullModel model : {NullModel::fixed_margins, NullModel::bicm, NullModel::curveball}) {
+    INFO(to_string(model));
+    NullOptions options;
+    options.model = model;
+    options.samples = 37;
+    options.seed = 5;
+    options.threads = 1;
+    const NullComparison one = compare_with_null(sample_sum, observed, options);
+    std::vector<double> drawn;  // the same samples drawn by hand
+    NullSampler sampler(observed, options);
+    for (long s = 0; s < options.samples; ++s) drawn.push_back(sample_sum(sampler.next()));
+    CHECK(one.null_values == drawn);
+    for (int threads : {2, 3}) {
+      INFO(threads << " threads");
+      options.threads = threads;
+      const auto several =
+          compare_metrics_with_null({sample_sum, nodf_metric, wnodf_metric}, observed, options);
+      REQUIRE(several.size() == 3);
+      CHECK(several[0].null_values == one.null_values);
+      options.threads = 1;
+      CHECK(several[1].null_values ==
+            compare_with_null(nodf_metric, observed, options).null_values);
+      CHECK(several[2].null_values ==
+            compare_with_null(wnodf_metric, observed, options).null_values);
+      CHECK(several[1].z_score == compare_with_null(nodf_metric, observed, options).z_score);
+    }
+  }
+}
+
+TEST_CASE("a metric that throws on a null sample stops the ensemble with its error") {
+  const Matrix observed =
+      read_matrix_csv(std::string(ALLOCSIM_TEST_DATA) + "/structure_nested_25x20.csv").values;
+  NullOptions options;
+  options.model = NullModel::bicm;
+  options.samples = 50;
+  options.threads = 2;
+  int calls = 0;
+  std::mutex guard;
+  const MetricFunction failing = [&](const Matrix&) -> double {
+    std::lock_guard<std::mutex> lock(guard);
+    if (++calls == 10) throw InputError("metric", "failed on purpose");
+    return 1.0;
+  };
+  CHECK_THROWS_WITH(compare_with_null(failing, observed, options), Catch::Contains("on purpose"));
+  options.threads = -1;
+  CHECK_THROWS_WITH(NullSampler(observed, options), Catch::Contains("threads"));
 }

@@ -36,8 +36,10 @@ struct EntropicOptions {
   double epsilon_shrink = 0.5;     // factor between epsilon-scaling stages; in (0, 1)
   bool epsilon_scaling = true;     // false: start directly at epsilon
   double absorb_threshold = 1e30;  // absorb u, v into f, g when any leaves [1/t, t]; > 1
-  int threads = 1;                 // threads sharing each iteration (rows split in blocks); >= 1.
-                                   // Keep 1 inside sweeps, which run solves in parallel already.
+  int threads = 1;                 // threads sharing each iteration, at most; >= 1. Results do
+                                   // not depend on it. Keep 1 inside sweeps, which run solves
+                                   // in parallel already.
+  double parallel_cells = 1e6;     // problems with fewer cells (n * m) use one thread; >= 0
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -58,16 +60,16 @@ struct DualPotentials {
 struct EntropicResult {
   EntropicStatus status = EntropicStatus::not_converged;
   std::string message;
-  Matrix coupling;           // n x m
-  DualPotentials potentials; // pi_ij = exp((gains_ij + f_i + g_j) / epsilon)
+  Matrix coupling;            // n x m
+  DualPotentials potentials;  // pi_ij = exp((gains_ij + f_i + g_j) / epsilon)
   double epsilon = 0;
-  double total_gain = 0;     // <gains, pi>
-  double entropy = 0;        // H(pi) = -sum pi (log pi - 1)
-  double primal_value = 0;   // total_gain + epsilon * entropy
-  double dual_value = 0;     // epsilon * sum(pi) - <f, r> - <g, c>; equals primal at the optimum
-  double marginal_error = 0; // relative L1 violation, as in the stopping rule
-  long iterations = 0;       // Sinkhorn sweeps over all stages
-  long stages = 0;           // epsilon-scaling stages
+  double total_gain = 0;        // <gains, pi>
+  double entropy = 0;           // H(pi) = -sum pi (log pi - 1)
+  double primal_value = 0;      // total_gain + epsilon * entropy
+  double dual_value = 0;        // epsilon * sum(pi) - <f, r> - <g, c>; equals primal at the optimum
+  double marginal_error = 0;    // relative L1 violation, as in the stopping rule
+  long iterations = 0;          // Sinkhorn sweeps over all stages
+  long stages = 0;              // epsilon-scaling stages
   long log_domain_updates = 0;  // sweeps that needed exact log-domain updates
   double seconds = 0;
 
@@ -80,8 +82,7 @@ struct EntropicResult {
 // problem, e.g. at a nearby epsilon; epsilon-scaling then starts at that
 // solve's epsilon when given through `warm_epsilon` > epsilon.
 EntropicResult solve_entropic(const TransportProblem& problem, const EntropicOptions& options,
-                              const DualPotentials* warm_start = nullptr,
-                              double warm_epsilon = 0);
+                              const DualPotentials* warm_start = nullptr, double warm_epsilon = 0);
 
 // max - min of the gains over allowed cells (0 when all are equal).
 double gain_range(const TransportProblem& problem);

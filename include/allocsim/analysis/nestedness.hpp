@@ -26,9 +26,12 @@
 // score 0 in any order, so the result does not depend on how ties are
 // broken. `as-given` scores the matrix in its own order.
 //
-// Cost: NODF packs rows and columns into 64-bit words, so it takes
-// O((n^2 m + m^2 n) / 64) word operations; WNODF loops over the non-zero
-// cells of the lower member of each pair, O(n^2 m + m^2 n) at worst.
+// Cost: in by-degree order both sum over members instead of pairs (each
+// lower member against the running per-column counts of the members of
+// larger degree): NODF O(n m), WNODF O(n m + nnz log n); the shared counts
+// are integers gathered per degree, so the result does not depend on how the
+// work is ordered. as-given order goes pair by pair: NODF on 64-bit words,
+// O((n^2 m + m^2 n) / 64), WNODF O(n^2 m + m^2 n) at worst.
 #pragma once
 
 #include <string>

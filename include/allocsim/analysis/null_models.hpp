@@ -127,6 +127,8 @@ struct NullOptions {
   long curveball_trades = 0;  // trades between curveball samples; 0 = max(100, 5 * rows); >= 0
   long share_units = 10000;   // units of the multinomial table for a matrix of shares; >= 1
   BicmOptions bicm;           // fit of the BiCM
+  int threads = 0;            // threads evaluating metrics on samples; 0 = the hardware's; >= 0.
+                              // The values do not depend on it (samples are drawn in order).
 
   // Throws InputError naming the wrong field.
   void validate() const;
@@ -155,6 +157,7 @@ class NullSampler {
   std::mt19937_64 rng_;
   bool counts_ = false;
   std::vector<long> row_counts_, column_counts_;
+  std::vector<double> log_factorial_;  // log(k!) up to the total count
   Vector row_totals_, column_totals_;
   BicmFit bicm_fit_;
   std::optional<CurveballChain> chain_;  // set for curveball
@@ -193,7 +196,18 @@ struct NullComparison {
 // Evaluates `metric` on the observation and on `options.samples` null
 // matrices. Ties are counted as ">=" within a relative 1e-12, so a metric
 // that takes few values (NODF on small matrices) is not biased by rounding.
+// The samples are drawn one after another from the seed; with
+// options.threads != 1 the metric runs on several samples at once (it must
+// be safe to call concurrently), while one thread at a time draws the next
+// sample, so the values are the same for any number of threads.
 NullComparison compare_with_null(const MetricFunction& metric, const Matrix& observed,
                                  const NullOptions& options);
+
+// The same for several metrics on one ensemble: result k is what
+// compare_with_null(metrics[k], observed, options) gives, each sample drawn
+// once.
+std::vector<NullComparison> compare_metrics_with_null(const std::vector<MetricFunction>& metrics,
+                                                      const Matrix& observed,
+                                                      const NullOptions& options);
 
 }  // namespace allocsim

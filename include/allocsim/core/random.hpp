@@ -26,6 +26,7 @@ enum class StreamId : std::uint64_t {
   capacities = 3,
   access = 4,
   dynamics = 5,
+  design = 6,  // benchmark sets: what each case draws (temperature, units, shape, laws) and their order
 };
 
 // One step of splitmix64: advances `state` and returns the mixed output.

@@ -20,9 +20,6 @@ namespace allocsim::plots {
 
 // The key of the choice temperature in a run record.
 inline constexpr char kChoiceTemperatureKey[] = "dynamics.temperature";
-// Keys of a benchmark case's truth and set in score tables.
-inline constexpr char kTrueEpsilonKey[] = "true_epsilon";
-inline constexpr char kBenchmarkSetKey[] = "family";
 
 // (temperature, value of `key`) for every run that has both.
 std::vector<Point> points_against_temperature(const std::vector<RunRecord>& runs,
@@ -50,10 +47,18 @@ DistanceAgainstTemperature distance_against_temperature(const std::vector<RunRec
 // The q-quantile (0..1) of sorted values by linear interpolation; NaN when empty.
 double quantile(const std::vector<double>& sorted, double q);
 
-// Median and quartiles of the relative error and interval coverage per set
-// and true epsilon, over runs with kTrueEpsilonKey and an epsilon estimate.
-// Empty sets when no run qualifies.
-EstimatorScores estimator_scores(const std::vector<RunRecord>& runs);
+// An estimator's score card from records with a true epsilon
+// (layout::kTrueEpsilonColumn: the rows of a scores file, or runs that carry
+// one): the estimate (layout::kEpsilon; missing = unanswered), the units
+// (kUnitsColumn, else kUnitsAfterBurnIn), one series per source (else per
+// family), and the coverage of the intervals (kEpsilonCiLow, kEpsilonCiHigh)
+// per quintile band of the truth and of the units, banded as `allocsim
+// score` bands them (band k: above the (k-1)th quintile, up to the kth);
+// when some records are misspecified (kMisspecifiedColumn = 1), coverage is
+// given apart for them and for the others ("true epsilon (misspecified)").
+// Cases in source order (model, price, gumbel, queue, learn, mixed-noise,
+// then the others). No cases when no record has a positive true epsilon.
+EstimatorScoreCard estimator_score_card(const std::vector<RunRecord>& records);
 
 // L1 marginal errors ||P 1/N - r/sum r||_1 and ||P^T 1/N - c/sum c||_1 of
 // each of `count` snapshots (snapshot(k) returns snapshot k); NaN for an

@@ -170,29 +170,35 @@ struct Trajectories {
 std::string draw_trajectories(const Trajectories& figure, const std::string& stem,
                               const FigureOptions& options = {});
 
-// An estimator's scores on benchmark sets with known temperature, one
-// series per set (e.g. per gains family): left, the relative error
-// (epsilon_hat - epsilon) / epsilon with a bar from its first to third
-// quartile; right, the share of intervals that cover the truth, against the
-// nominal level.
-struct BenchmarkScore {
+// An estimator's score card on a blind benchmark set (`allocsim score`,
+// drawn by `allocsim plot scores.h5`), four panels: the estimate against the
+// truth (log axes, identity line); the ratio estimate / truth (relative error
+// + 1; 1 = exact) against the truth and against the units (log axes); and
+// the share of intervals that cover the truth per quintile band of the truth
+// and of the units, against the nominal level. One point series per
+// `series` label (e.g. the source; up to 8 styles, then they repeat).
+// Unanswered cases (NaN estimate) are left out; estimates of 0 or infinity
+// cannot sit on log axes and are counted in a note. A band without
+// intervals is left out of its line.
+struct ScoredEstimate {
   double true_epsilon = 0;       // > 0
-  double median_relative_error = 0;
-  double quartile_low = kNoValue;   // of the relative error; NaN when not known
-  double quartile_high = kNoValue;
-  double coverage = kNoValue;    // in [0, 1]; NaN when no intervals
-  long cases = 0;
+  double estimate = kNoValue;    // >= 0, may be +inf; NaN: unanswered
+  double units = kNoValue;       // NaN: not known (the units panel is then left empty)
+  std::string series;            // plain text
 };
-struct BenchmarkSeries {
-  std::string label;  // plain text, e.g. "trait-distance gains"
-  std::vector<BenchmarkScore> scores;
+struct CoverageBand {
+  std::string axis;              // plain text, e.g. "true epsilon": one line per axis
+  int band = 0;                  // 1..5 (quintiles, low to high)
+  double coverage = kNoValue;    // in [0, 1]; NaN: no interval in the band
+  long intervals = 0;
 };
-struct EstimatorScores {
+struct EstimatorScoreCard {
   std::string title;
-  std::vector<BenchmarkSeries> sets;
+  std::vector<ScoredEstimate> cases;
+  std::vector<CoverageBand> bands;
   double nominal_coverage = 0.95;
 };
-std::string draw_estimator_scores(const EstimatorScores& figure, const std::string& stem,
-                                  const FigureOptions& options = {});
+std::string draw_estimator_score_card(const EstimatorScoreCard& figure, const std::string& stem,
+                                      const FigureOptions& options = {});
 
 }  // namespace allocsim::plots

@@ -95,4 +95,21 @@ inline constexpr char kPUpper[] = "p_upper";
 // Summary columns besides the experiment keys and the analysis attributes.
 inline constexpr char kRunColumn[] = "run";
 
+// A scores file (`allocsim score --out scores.h5`) holds no runs: its
+// /summary has one row per case of a benchmark set, with kEpsilon,
+// kEpsilonCiLow and kEpsilonCiHigh for the answer and these columns.
+inline constexpr char kCaseColumn[] = "case";
+inline constexpr char kFamilyColumn[] = "family";
+inline constexpr char kSourceColumn[] = "source";
+inline constexpr char kMisspecifiedColumn[] = "misspecified";  // 1 or 0
+inline constexpr char kTrueEpsilonColumn[] = "true_epsilon";
+inline constexpr char kUnitsColumn[] = "units";
+inline constexpr char kAgentsColumn[] = "agents";
+inline constexpr char kPartnersColumn[] = "partners";
+inline constexpr char kEpsilonBandColumn[] = "epsilon_band";  // quintile 1..5 of the truth
+inline constexpr char kUnitsBandColumn[] = "units_band";      // quintile 1..5 of the units
+inline constexpr char kAnswerColumn[] = "answer";             // answered, declined, missing
+inline constexpr char kRelativeErrorColumn[] = "relative_error";
+inline constexpr char kCoveredColumn[] = "covered";  // 1 or 0; NaN without an interval
+
 }  // namespace allocsim::layout

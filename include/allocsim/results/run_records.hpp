@@ -27,4 +27,9 @@ struct RunRecord {
 // One record per run, in the order of reader.runs().
 std::vector<RunRecord> read_run_records(const ResultsReader& reader);
 
+// One record per row of /summary, named by its run column (else its case
+// column, else the row number): the records of a file without runs, such
+// as the scores of a benchmark set.
+std::vector<RunRecord> read_summary_records(const ResultsReader& reader);
+
 }  // namespace allocsim
