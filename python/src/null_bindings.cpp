@@ -143,6 +143,9 @@ py::dict sample_nulls(NullModel model, const std::string& function, const py::ob
   }
   bool keep = true;
   options.read("keep_samples", keep);
+  // One thread evaluates the metrics: the samples are stored in the order
+  // the metric sees them, and Python metrics hold the GIL anyway.
+  nulls.threads = 1;
 
   const bool weighted = model == NullModel::fixed_margins;
   Matrix observed;
