@@ -11,6 +11,7 @@ packages=(
   libhdf5-dev catch2 libgnuplot-iostream-dev gnuplot-nox liblemon-dev
   libopenmpi-dev openmpi-bin
   python3 python3-numpy python3-scipy python3-h5py python3-statsmodels
+  python3-dev pybind11-dev python3-pytest python3-pandas  # the Python module and its tests
   clang libclang-rt-dev libomp-dev  # libFuzzer targets (tests/fuzz/run_fuzzers.sh)
 )
 

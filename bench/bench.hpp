@@ -43,6 +43,7 @@ void csv_rows(const Settings& settings, Report& report);
 void threads_rows(const Settings& settings, Report& report);
 void null_rows(const Settings& settings, Report& report);
 void scale_rows(const Settings& settings, Report& report);
+void python_module_rows(const Settings& settings, Report& report);  // needs the built module
 
 // The child side of the memory rows (this program re-executed): plays a
 // simulation and exits; returns the exit code.

@@ -42,7 +42,7 @@ const char* kUsage =
     "  --quick   smoke run: small sizes and short caps (about half a minute)\n"
     "  --json    print one JSON object instead of the table\n"
     "  --only    comma-separated groups: exact, entropic, iteration, simulation, threads, nulls,\n"
-    "            scale, csv (machine always)\n";
+    "            scale, csv, python (machine always)\n";
 
 std::string self_path() {
   char buffer[4096];
@@ -144,6 +144,10 @@ int main(int argc, char** argv) {
     if (wanted("csv")) {
       std::cerr << "allocsim_bench: CSV reading and writing, whole solve process...\n";
       csv_rows(settings, report);
+    }
+    if (wanted("python")) {
+      std::cerr << "allocsim_bench: the Python module vs C++ and numpy...\n";
+      python_module_rows(settings, report);
     }
   } catch (const std::exception& e) {
     std::cerr << "allocsim_bench: " << e.what() << "\n";

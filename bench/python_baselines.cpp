@@ -39,10 +39,12 @@ std::string PythonAnswer::word(const std::string& key) const {
   return text_.substr(begin, text_.find('"', begin) - begin);
 }
 
-PythonAnswer run_python(const std::vector<std::string>& arguments) {
+PythonAnswer run_python(const std::vector<std::string>& arguments, const std::string& script,
+                        const std::string& python_path) {
   std::string command =
       "env -u OPENBLAS_CORETYPE -u OPENBLAS_L2_SIZE OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 " +
-      shell_quote(ALLOCSIM_BENCH_PYTHON) + " " + shell_quote(ALLOCSIM_BENCH_SCRIPT);
+      (python_path.empty() ? std::string() : "PYTHONPATH=" + shell_quote(python_path) + " ") +
+      shell_quote(ALLOCSIM_BENCH_PYTHON) + " " + shell_quote(script);
   for (const auto& a : arguments) command += " " + shell_quote(a);
   std::FILE* pipe = popen(command.c_str(), "r");
   if (!pipe) return PythonAnswer("");

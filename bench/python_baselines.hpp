@@ -24,6 +24,10 @@ class PythonAnswer {
 // Runs the script with `arguments`. OPENBLAS_CORETYPE and OPENBLAS_L2_SIZE
 // are unset together for this child only (they slow a current numpy), and
 // numpy's BLAS is held to one thread, like the solver it is compared with.
-PythonAnswer run_python(const std::vector<std::string>& arguments);
+// `script` defaults to bench/python_baselines.py; `python_path` (when not
+// empty) is put in PYTHONPATH, e.g. the folder of the built Python module.
+PythonAnswer run_python(const std::vector<std::string>& arguments,
+                        const std::string& script = ALLOCSIM_BENCH_SCRIPT,
+                        const std::string& python_path = "");
 
 }  // namespace allocsim::bench
