@@ -105,6 +105,11 @@ int simulate_command(const Arguments& args) {
                  "the access mask (" << report.infeasibility << "); prices drift and queue leaves "
                  "units unplaced\n";
   }
+  if (!report.result.settling.settled) {
+    std::cerr << "allocsim simulate: warning: " << report.run << " "
+              << report.result.settling.brief()
+              << " (its allocation after burn-in is not the stationary one; see docs/guide.md)\n";
+  }
 
   if (vm.count("json")) {
     JsonObject json;
@@ -118,6 +123,9 @@ int simulate_command(const Arguments& args) {
         .add("snapshots", static_cast<long long>(report.result.snapshots))
         .add("units_after_burn_in", report.result.total.sum())
         .add("unplaced_units", static_cast<long long>(report.result.unplaced_units))
+        .add("settled", report.result.settling.settled)
+        .add("capacity_error", report.result.settling.capacity_error)
+        .add("window_change", report.result.settling.change)
         .add("seconds", report.result.seconds);
     std::cout << json.str() << "\n";
   } else {

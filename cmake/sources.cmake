@@ -37,6 +37,7 @@ allocsim_layer(sim
     sim/queue_rule.cpp
     sim/rules.cpp
     sim/scenario.cpp
+    sim/settling.cpp
   LINKS allocsim::core)
 
 # The results file: the one layer that knows HDF5 and the file layout.
@@ -59,6 +60,7 @@ allocsim_layer(experiments
     experiments/simulation.cpp
     experiments/sweep.cpp
     experiments/sweep_runner.cpp
+    experiments/trend.cpp
   LINKS allocsim::results Boost::program_options)
 
 allocsim_layer(plots
@@ -86,7 +88,8 @@ add_executable(allocsim
   cli/options.cpp
   cli/run_command.cpp
   cli/simulate_command.cpp
-  cli/solve_command.cpp)
+  cli/solve_command.cpp
+  cli/trend_command.cpp)
 target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
 target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/cli)
 target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis allocsim::plots Boost::program_options)

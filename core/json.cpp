@@ -66,6 +66,15 @@ JsonObject& JsonObject::add(const std::string& key, const std::vector<double>& v
   add_raw(key, raw + "]");
   return *this;
 }
+JsonObject& JsonObject::add(const std::string& key, const std::vector<JsonObject>& values) {
+  std::string raw = "[";
+  for (std::size_t k = 0; k < values.size(); ++k) {
+    if (k) raw += ",";
+    raw += values[k].str();
+  }
+  add_raw(key, raw + "]");
+  return *this;
+}
 JsonObject& JsonObject::add_null(const std::string& key) {
   add_raw(key, "null");
   return *this;

@@ -19,6 +19,7 @@ class JsonObject {
   JsonObject& add(const std::string& key, const char* value) { return add(key, std::string(value)); }
   JsonObject& add(const std::string& key, const JsonObject& value);
   JsonObject& add(const std::string& key, const std::vector<double>& values);
+  JsonObject& add(const std::string& key, const std::vector<JsonObject>& values);
   JsonObject& add_null(const std::string& key);
 
   std::string str() const;

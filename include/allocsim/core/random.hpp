@@ -26,6 +26,7 @@ enum class StreamId : std::uint64_t {
   capacities = 3,
   access = 4,
   dynamics = 5,
+  trend = 6,  // permutations and bootstrap draws of experiments/trend.hpp
 };
 
 // One step of splitmix64: advances `state` and returns the mixed output.
