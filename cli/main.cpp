@@ -9,13 +9,17 @@
 namespace {
 
 void print_overview() {
-  std::cout << "allocsim: agent-based allocation dynamics and optimal transport\n\n"
-               "usage: allocsim <command> [options]   (allocsim <command> --help for its options)\n\n"
-               "commands:\n";
+  std::cout
+      << "allocsim: agent-based allocation dynamics and optimal transport\n\n"
+         "usage: allocsim <command> [options]   (allocsim <command> --help for its options)\n\n"
+         "commands:\n";
   for (const auto& command : allocsim::cli::all_commands()) {
     std::cout << "  " << command.name << std::string(10 - std::string(command.name).size(), ' ')
               << command.summary << "\n";
   }
+  std::cout
+      << "\nWhat the rules, scenarios, null models and epsilon mean: docs/guide.md (the modelling\n"
+         "guide); every experiment key: docs/experiment-keys.md.\n";
 }
 
 }  // namespace

@@ -2,8 +2,8 @@
 #include <H5Cpp.h>
 
 #include <chrono>
-#include <sstream>
 #include <iostream>
+#include <sstream>
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
@@ -24,8 +24,8 @@ constexpr double kSimulationMatrices = 8;
 
 void require_simulation_memory(const ExperimentValues& values) {
   const std::string& where = values.where("scenario.agents");
-  require_memory(dense_matrix_bytes(values.real("scenario.agents"), values.real("scenario.partners"),
-                                    kSimulationMatrices),
+  require_memory(dense_matrix_bytes(values.real("scenario.agents"),
+                                    values.real("scenario.partners"), kSimulationMatrices),
                  "a simulation of " + values.text("scenario.agents") + " x " +
                      values.text("scenario.partners") + " cells",
                  where == "--scenario.agents" ? where
@@ -36,13 +36,12 @@ void require_simulation_memory(const ExperimentValues& values) {
 
 po::options_description simulate_options() {
   po::options_description options("simulate options");
-  options.add_options()
-      ("config", po::value<std::string>(), "experiment file (INI); --section.key options win over it")
-      ("out", po::value<std::string>(), "results file to write (default: output.file)")
-      ("threads", po::value<int>()->default_value(1), "worker threads (results do not depend on it)")
-      ("quiet", "no progress on stderr")
-      ("json", "print one JSON object on stdout")
-      ("help,h", "show this help");
+  options.add_options()("config", po::value<std::string>(),
+                        "experiment file (INI); --section.key options win over it")(
+      "out", po::value<std::string>(), "results file to write (default: output.file)")(
+      "threads", po::value<int>()->default_value(1),
+      "worker threads (results do not depend on it)")("quiet", "no progress on stderr")(
+      "json", "print one JSON object on stdout")("help,h", "show this help");
   add_experiment_key_options(options);
   return options;
 }
@@ -56,6 +55,8 @@ std::string usage() {
       << "  --threads N     worker threads (results do not depend on it; default 1)\n"
       << "  --quiet         no progress on stderr\n"
       << "  --json          print one JSON object on stdout\n\n"
+      << "A run that did not settle (capacities not met after burn-in, or still changing) gets a\n"
+      << "warning with advice. What each rule, scenario and key means: docs/guide.md.\n\n"
       << experiment_keys_help();
   return out.str();
 }
@@ -102,7 +103,9 @@ int simulate_command(const Arguments& args) {
   const SimulationReport report = simulate_to_file(values, request);
   if (!report.infeasibility.empty()) {
     std::cerr << "allocsim simulate: warning: no coupling meets the budgets and capacities under "
-                 "the access mask (" << report.infeasibility << "); prices drift and queue leaves "
+                 "the access mask ("
+              << report.infeasibility
+              << "); prices drift and queue leaves "
                  "units unplaced\n";
   }
   if (!report.result.settling.settled) {

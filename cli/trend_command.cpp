@@ -183,7 +183,7 @@ void print_table(const Request& request, const std::vector<TrendLevel>& levels,
   const double z = request.options.z_threshold;
   std::cout << std::left << std::setw(static_cast<int>(width) + 2) << "level" << std::right
             << std::setw(6) << "runs" << std::setw(8) << "rho" << std::setw(9) << "p"
-            << std::setw(17) << "slope per 10x x" << std::setw(24)
+            << std::setw(17) << "slope per 10x" << std::setw(24)
             << (cell(100 * request.options.confidence) + "% interval");
   if (!request.z_column.empty()) {
     std::cout << std::setw(9) << ("z > " + cell(z)) << std::setw(9) << ("z < -" + cell(z));

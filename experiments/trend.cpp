@@ -310,6 +310,12 @@ std::string describe_trend(const TrendResult& r, const TrendWording& w,
     if (std::isfinite(r.slope_low)) {
       out << " (" << number_text(100 * options.confidence, 3) << "% interval "
           << number_text(r.slope_low) << " to " << number_text(r.slope_high) << ")";
+      const bool excludes_zero = r.slope_low > 0 || r.slope_high < 0;
+      if (r.direction == TrendDirection::no_clear_trend && excludes_zero) {
+        out << ", which excludes 0: a slope the rank test does not confirm";
+      } else if (r.direction != TrendDirection::no_clear_trend && !excludes_zero) {
+        out << ", which includes 0";
+      }
     } else {
       out << " (no interval: needs two or more runs at every value)";
     }
