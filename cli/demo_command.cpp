@@ -3,8 +3,8 @@
 #include <H5Cpp.h>
 
 #include <algorithm>
-#include <cstdio>
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <iostream>
 #include <map>
@@ -13,8 +13,9 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/results/results_reader.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
+#include "allocsim/experiments/trend.hpp"
+#include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
 
@@ -26,7 +27,8 @@ namespace {
 // (partners) with limited cold storage (capacities, Zipf-unequal); a boat
 // earns more where the buyers want its kind of fish (trait distance). The
 // boats' choice noise T is swept; every run is analysed.
-constexpr const char* kDemoExperiment = R"(# allocsim demo: boats choosing harbour markets, at six choice temperatures
+constexpr const char* kDemoExperiment =
+    R"(# allocsim demo: boats choosing harbour markets, at six choice temperatures
 [scenario]
 agents = 40
 partners = 30
@@ -90,28 +92,35 @@ void tell_findings(std::ostream& out, const std::string& results) {
     worst = std::max(worst, std::abs(eps[k] / T[k] - 1));
   }
   out << "Temperature: the transport temperature fitted to each emergent allocation came within "
-      << number(100 * worst, 2) << "% of the choice temperature that produced it ("
-      << estimated << " of " << T.size() << " runs estimated); its 95% interval covered the true "
+      << number(100 * worst, 2) << "% of the choice temperature that produced it (" << estimated
+      << " of " << T.size() << " runs estimated); its 95% interval covered the true "
       << "value in " << covered << " of " << estimated << " runs.\n";
   out << "      T   fitted epsilon    NODF   NODF of curveball nulls       z\n";
   for (std::size_t k = 0; k < T.size(); ++k) {
     char line[160];
-    std::snprintf(line, sizeof line, "%7.4g   %14.4g  %6.1f   %12.1f +- %-8.2g  %6.1f\n", T[k], eps[k],
-                  c["nodf"].values[k], c["nodf_null_mean"].values[k], c["nodf_null_sd"].values[k],
-                  c["nodf_z_score"].values[k]);
+    std::snprintf(line, sizeof line, "%7.4g   %14.4g  %6.1f   %12.1f +- %-8.2g  %6.1f\n", T[k],
+                  eps[k], c["nodf"].values[k], c["nodf_null_mean"].values[k],
+                  c["nodf_null_sd"].values[k], c["nodf_z_score"].values[k]);
     out << line;
   }
-  const auto& z = c["nodf_z_score"].values;
-  const long above = std::count_if(z.begin(), z.end(), [](double v) { return v > 2; });
-  const long below = std::count_if(z.begin(), z.end(), [](double v) { return v < -2; });
+  // The closing answer is what `allocsim trend` says of the same summary.
+  TrendOptions trend_options;
+  const TrendResult trend =
+      measure_trend(T, c["nodf_z_score"].values, c["nodf_z_score"].values, trend_options);
   out << "Nestedness (links where a market takes more of a boat's catch than its share overall): "
       << "NODF went from " << number(c["nodf"].values.front()) << " at T = " << number(T.front())
-      << " to " << number(c["nodf"].values.back()) << " at T = " << number(T.back()) << "; "
-      << above << " runs were more nested and " << below << " less nested than their curveball "
-      << "nulls (|z| > 2), which keep every boat's and market's number of links.\n";
+      << " to " << number(c["nodf"].values.back()) << " at T = " << number(T.back())
+      << "; against curveball nulls, which keep every boat's and market's number of links "
+      << "(allocsim trend " << results << "): "
+      << describe_trend(trend,
+                        {"", "NODF's z-score", "temperature",
+                         "more nested than their curveball null", "less nested"},
+                        trend_options)
+      << "\n";
   out << "Distance (total variation) to the entropic coupling at the fitted epsilon: at most "
       << number(*std::max_element(c["entropic_total_variation"].values.begin(),
-                                  c["entropic_total_variation"].values.end()), 2)
+                                  c["entropic_total_variation"].values.end()),
+                2)
       << "; to the exact optimum: from " << number(c["exact_total_variation"].values.front(), 2)
       << " at the lowest T to " << number(c["exact_total_variation"].values.back(), 2)
       << " at the highest.\n";
@@ -121,21 +130,25 @@ void tell_findings(std::ostream& out, const std::string& results) {
 
 int demo_command(const Arguments& args) {
   po::options_description options("demo options");
-  options.add_options()
-      ("out-dir", po::value<std::string>()->default_value("allocsim-demo"),
-       "new folder for the results and figures (default: allocsim-demo, or -2, -3, ... when taken)")
-      ("threads", po::value<int>()->default_value(static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
-       "worker threads");
+  options.add_options()(
+      "out-dir", po::value<std::string>()->default_value("allocsim-demo"),
+      "new folder for the results and figures (default: allocsim-demo, or -2, -3, ... when taken)")(
+      "threads",
+      po::value<int>()->default_value(
+          static_cast<int>(std::max(1u, std::thread::hardware_concurrency()))),
+      "worker threads");
   po::variables_map vm;
-  if (!parse_or_help(args, options, {}, vm, "demo", "[--out-dir DIR] [--threads N]")) return kExitOk;
+  if (!parse_or_help(args, options, {}, vm, "demo", "[--out-dir DIR] [--threads N]"))
+    return kExitOk;
   fs::path folder = vm["out-dir"].as<std::string>();
   // The default folder is taken: run again into allocsim-demo-2, -3, ...
   for (int k = 2; vm["out-dir"].defaulted() && fs::exists(folder) && !fs::is_empty(folder); ++k) {
     folder = "allocsim-demo-" + std::to_string(k);
   }
   if (fs::exists(folder) && !fs::is_empty(folder)) {
-    throw InputError(folder.string(), "exists and is not empty; the demo writes into a new folder "
-                                      "(remove it or give --out-dir)");
+    throw InputError(folder.string(),
+                     "exists and is not empty; the demo writes into a new folder "
+                     "(remove it or give --out-dir)");
   }
   fs::create_directories(folder);
   const std::string experiment = (folder / "demo.ini").string();
