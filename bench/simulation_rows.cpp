@@ -4,7 +4,6 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
-#include <H5Cpp.h>
 
 #include <atomic>
 #include <cstdio>
@@ -16,7 +15,7 @@
 #include "allocsim/analysis/entropic_transport.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/engine.hpp"
-#include "allocsim/results/recorder.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/rules.hpp"
 #include "bench.hpp"
 #include "instances.hpp"
@@ -111,12 +110,13 @@ int memory_child(long size, long rounds, const std::string& file) {
   o.burn_in = std::min(100L, rounds / 2);
   o.window = 50;
   o.temperature = 0.05;
-  H5::H5File h5(file, H5F_ACC_TRUNC);
-  H5::Group group = h5.createGroup("run");
-  write_scenario(group, p);
-  AllocationRecorder recorder(group, size, size);
+  ResultsFile results(file, "", "bench");
+  RunWriter run = results.create_run(run_name(0));
+  run.write_scenario(p);
+  AllocationRecorder recorder = run.record_allocation(size, size);
   const RunResult result = run_dynamics(p, o, 9, 0, &recorder);
   recorder.finish(result);
+  results.commit();
   return 0;
 }
 

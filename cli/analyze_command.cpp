@@ -1,7 +1,5 @@
 // allocsim analyze: temperature, distance to the optimal couplings and
 // structure of an allocation, from CSV files or from the runs of a results file.
-#include <H5Cpp.h>
-
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -14,7 +12,8 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/analysis/allocation_report.hpp"
-#include "allocsim/results/report_writer.hpp"
+#include "allocsim/results/layout.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
@@ -78,14 +77,13 @@ AllocationInput read_csv_input(const po::variables_map& vm) {
 // allocation after burn-in and its scenario.
 AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   reader.require_run(run);
-  const std::string where = reader.path() + ":/runs/" + run;
+  const std::string where = reader.path() + ":/" + layout::kRuns + "/" + run + "/";
   const TransportProblem scenario = reader.read_scenario(run);
   AllocationInput in;
-  in.sources = {where + "/allocation/total", where + "/scenario/gains",
-                where + "/scenario/access"};
+  in.sources = {where + layout::kTotal, where + layout::kGains, where + layout::kAccess};
   in.gains = scenario.gains;
   in.access = scenario.access;
-  in.allocation = reader.read_matrix(run, "allocation/total");
+  in.allocation = reader.read_matrix(run, layout::kTotal);
   return in;
 }
 
@@ -93,7 +91,7 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
                          const AllocationAnalysisOptions& options) {
   std::vector<std::string> runs;
   std::vector<AllocationReport> reports;
-  try {
+  {
     const ResultsReader reader(path);
     runs = vm.count("run") ? std::vector<std::string>{vm["run"].as<std::string>()} : reader.runs();
     if (runs.empty()) throw InputError(path, "holds no runs");
@@ -102,8 +100,6 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
       if (!vm.count("json")) std::cerr << "analyzing " << run << "\n";
       reports.push_back(analyze_allocation(in, options));
     }
-  } catch (const H5::Exception& e) {
-    throw InputError(path, "cannot be read: " + e.getDetailMsg());
   }
   for (std::size_t k = 0; k < runs.size(); ++k) {
     if (vm.count("json")) {
@@ -117,21 +113,9 @@ int analyze_results_file(const std::string& path, const po::variables_map& vm,
   }
   if (vm.count("write")) {
     // A copy beside the file takes the analysis; it replaces the file only when complete.
-    const std::string temporary = temporary_name_for(path);
-    std::filesystem::copy_file(path, temporary, std::filesystem::copy_options::overwrite_existing);
-    try {
-      {
-        H5::H5File file(temporary, H5F_ACC_RDWR);
-        for (std::size_t k = 0; k < runs.size(); ++k) {
-          H5::Group run_group = file.openGroup("runs/" + runs[k]);
-          write_allocation_report(run_group, reports[k]);
-        }
-      }
-      std::filesystem::rename(temporary, path);
-    } catch (...) {
-      std::remove(temporary.c_str());
-      throw;
-    }
+    ResultsUpdate update(path);
+    for (std::size_t k = 0; k < runs.size(); ++k) update.run(runs[k]).write_report(reports[k]);
+    update.commit();
     if (!vm.count("json"))
       std::cerr << "wrote the analysis of " << runs.size() << " run(s) into " << path << "\n";
   }

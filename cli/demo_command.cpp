@@ -1,6 +1,5 @@
 // allocsim demo: a built-in temperature sweep, analysed and drawn, told in
 // plain words. The scenario is invented for the demonstration.
-#include <H5Cpp.h>
 
 #include <algorithm>
 #include <cmath>
@@ -11,6 +10,7 @@
 #include <sstream>
 #include <thread>
 
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
@@ -164,7 +164,7 @@ int demo_command(const Arguments& args) {
   SweepRequest request;
   request.threads = std::max(1, vm["threads"].as<int>());
   request.tool_version = ALLOCSIM_VERSION;
-  H5::Exception::dontPrint();
+  silence_hdf5_diagnostics();
   const SweepReport report = run_sweep(plan, request);
   if (!report.complete) throw std::runtime_error(report.brief());
   write_summary_csv((folder / "summary.csv").string(), report.summary);

@@ -1,6 +1,4 @@
 // allocsim inspect: what a results file holds (runs, parameters, datasets).
-#include <H5Cpp.h>
-
 #include <iostream>
 #include <sstream>
 #include <variant>
@@ -8,7 +6,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/csv.hpp"
-#include "allocsim/results/results_file.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
@@ -16,56 +14,16 @@
 namespace allocsim::cli {
 namespace {
 
-struct DatasetInfo {
-  std::string path;  // relative to the group listed
-  std::string type;  // float64, int64, uint8, text, ...
-  std::vector<hsize_t> shape;
-};
-
-std::string type_name(const H5::DataSet& ds) {
-  const H5::DataType type = ds.getDataType();
-  switch (type.getClass()) {
-    case H5T_FLOAT:
-      return "float" + std::to_string(8 * type.getSize());
-    case H5T_INTEGER: {
-      const bool is_signed = ds.getIntType().getSign() != H5T_SGN_NONE;
-      return std::string(is_signed ? "int" : "uint") + std::to_string(8 * type.getSize());
-    }
-    case H5T_STRING:
-      return "text";
-    default:
-      return "other";
-  }
-}
-
-void collect_datasets(const H5::Group& group, const std::string& prefix,
-                      std::vector<DatasetInfo>& out) {
-  for (hsize_t k = 0; k < group.getNumObjs(); ++k) {
-    const std::string name = group.getObjnameByIdx(k);
-    const std::string path = prefix.empty() ? name : prefix + "/" + name;
-    const H5O_type_t kind = group.childObjType(name);
-    if (kind == H5O_TYPE_GROUP) {
-      collect_datasets(group.openGroup(name), path, out);
-    } else if (kind == H5O_TYPE_DATASET) {
-      const H5::DataSet ds = group.openDataSet(name);
-      const H5::DataSpace space = ds.getSpace();
-      std::vector<hsize_t> shape(static_cast<std::size_t>(space.getSimpleExtentNdims()));
-      if (!shape.empty()) space.getSimpleExtentDims(shape.data());
-      out.push_back({path, type_name(ds), shape});
-    }
-  }
-}
-
 std::string text_of(const AttributeValue& value) {
   if (const auto* text = std::get_if<std::string>(&value)) return *text;
   if (const auto* integer = std::get_if<long long>(&value)) return std::to_string(*integer);
   return format_number(std::get<double>(value));
 }
 
-std::string shape_text(const std::vector<hsize_t>& shape) {
+std::string shape_text(const std::vector<unsigned long long>& shape) {
   if (shape.empty()) return "scalar";
   std::string text;
-  for (const hsize_t d : shape) text += (text.empty() ? "" : " x ") + std::to_string(d);
+  for (const auto d : shape) text += (text.empty() ? "" : " x ") + std::to_string(d);
   return text;
 }
 
@@ -100,74 +58,57 @@ JsonObject datasets_json(const std::vector<DatasetInfo>& datasets) {
   return json;
 }
 
-std::vector<std::string> group_names(const H5::Group& group) {
-  std::vector<std::string> names;
-  for (hsize_t k = 0; k < group.getNumObjs(); ++k) names.push_back(group.getObjnameByIdx(k));
-  return names;
-}
-
-void print_listing(const std::string& path, const H5::H5File& file, bool show_experiment) {
-  const Attributes root = read_attributes(file);
-  std::cout << path << ": " << attribute_text(root, "format") << " format "
-            << attribute_text(root, "format_version") << ", written by allocsim "
-            << attribute_text(root, "tool_version") << " at " << attribute_text(root, "created_utc")
-            << "\n";
+void print_listing(const ResultsReader& reader, bool show_experiment) {
+  const Attributes root = reader.root_attributes();
+  std::cout << reader.path() << ": " << attribute_text(root, layout::kFormatAttribute) << " format "
+            << attribute_text(root, layout::kFormatVersion) << ", written by allocsim "
+            << attribute_text(root, layout::kToolVersion) << " at "
+            << attribute_text(root, layout::kCreatedUtc) << "\n";
   if (show_experiment) {
-    std::cout << "\nexperiment:\n" << attribute_text(root, "experiment") << "\n";
+    std::cout << "\nexperiment:\n" << attribute_text(root, layout::kExperiment) << "\n";
   }
-  const H5::Group runs = file.openGroup("runs");
-  const auto names = group_names(runs);
+  const auto names = reader.runs();
   std::cout << "\nruns: " << names.size() << "\n";
   for (const auto& name : names) {
-    const H5::Group run = runs.openGroup(name);
-    const Attributes attributes = read_attributes(run);
-    std::cout << "\n" << name << " (status " << attribute_text(attributes, "status") << ")\n"
+    const Attributes attributes = reader.run_attributes(name);
+    std::cout << "\n" << name << " (status " << attribute_text(attributes, layout::kStatus) << ")\n"
               << "  parameters:\n";
     for (const auto& [key, value] : attributes) {
       std::cout << "    " << key << " = " << text_of(value) << "\n";
     }
-    std::vector<DatasetInfo> datasets;
-    collect_datasets(run, "", datasets);
     std::cout << "  datasets:\n";
-    for (const auto& d : datasets) {
+    for (const auto& d : reader.datasets(name)) {
       std::cout << "    " << d.path << std::string(d.path.size() < 24 ? 24 - d.path.size() : 1, ' ')
                 << d.type << "  " << shape_text(d.shape) << "\n";
     }
   }
-  if (file.nameExists("summary")) {
-    std::vector<DatasetInfo> columns;
-    collect_datasets(file.openGroup("summary"), "", columns);
-    const hsize_t rows = columns.empty() || columns.front().shape.empty() ? 0 : columns.front().shape[0];
+  const std::vector<DatasetInfo> columns = reader.summary_columns();
+  if (!columns.empty()) {
+    const auto rows = columns.front().shape.empty() ? 0 : columns.front().shape[0];
     std::cout << "\nsummary: " << rows << (rows == 1 ? " row, " : " rows, ") << columns.size() << " columns\n";
   }
 }
 
-void print_json(const std::string& path, const H5::H5File& file) {
-  const Attributes root = read_attributes(file);
+void print_json(const ResultsReader& reader) {
+  const Attributes root = reader.root_attributes();
   JsonObject json;
-  json.add("file", path);
-  for (const auto& name : {"format", "format_version", "tool_version", "created_utc", "experiment"}) {
+  json.add("file", reader.path());
+  for (const auto& name : {layout::kFormatAttribute, layout::kFormatVersion, layout::kToolVersion,
+                           layout::kCreatedUtc, layout::kExperiment}) {
     if (const AttributeValue* value = find(root, name)) {
       if (const auto* text = std::get_if<std::string>(value)) json.add(name, *text);
       else json.add(name, text_of(*value));
     }
   }
-  const H5::Group runs = file.openGroup("runs");
   JsonObject runs_json;
-  for (const auto& name : group_names(runs)) {
-    const H5::Group run = runs.openGroup(name);
-    std::vector<DatasetInfo> datasets;
-    collect_datasets(run, "", datasets);
+  for (const auto& name : reader.runs()) {
     runs_json.add(name, JsonObject()
-                            .add("attributes", attributes_json(read_attributes(run)))
-                            .add("datasets", datasets_json(datasets)));
+                            .add("attributes", attributes_json(reader.run_attributes(name)))
+                            .add("datasets", datasets_json(reader.datasets(name))));
   }
   json.add("runs", runs_json);
-  if (file.nameExists("summary")) {
-    std::vector<DatasetInfo> columns;
-    collect_datasets(file.openGroup("summary"), "", columns);
-    json.add("summary", datasets_json(columns));
-  }
+  const std::vector<DatasetInfo> columns = reader.summary_columns();
+  if (!columns.empty()) json.add("summary", datasets_json(columns));
   std::cout << json.str() << "\n";
 }
 
@@ -186,14 +127,9 @@ int inspect_command(const Arguments& args) {
     return kExitOk;
   }
   const std::string path = vm["file"].as<std::string>();
-  try {
-    ResultsReader reader(path);
-    const H5::H5File& file = reader.file();
-    if (vm.count("json")) print_json(path, file);
-    else print_listing(path, file, vm.count("experiment") > 0);
-  } catch (const H5::Exception& e) {
-    throw InputError(path, "cannot be read as a results file (" + e.getDetailMsg() + ")");
-  }
+  const ResultsReader reader(path);
+  if (vm.count("json")) print_json(reader);
+  else print_listing(reader, vm.count("experiment") > 0);
   return kExitOk;
 }
 

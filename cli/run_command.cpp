@@ -1,6 +1,5 @@
 // allocsim run: every run of an experiment file's sweep, in parallel,
 // resumable, and over MPI ranks when launched by mpirun.
-#include <H5Cpp.h>
 #include <unistd.h>
 
 #include <atomic>
@@ -11,6 +10,7 @@
 #include <sstream>
 #include <thread>
 
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/experiments/keys.hpp"
@@ -127,7 +127,7 @@ int run_command(const Arguments& args) {
     return kExitOk;
   }
   if (!vm.count("experiment")) throw InputError("allocsim run", "name an experiment file (see --help)");
-  H5::Exception::dontPrint();
+  silence_hdf5_diagnostics();
   MpiSession mpi;
   const SweepPlan plan = plan_sweep(vm["experiment"].as<std::string>(), experiment_values_given(vm));
 

@@ -1,10 +1,10 @@
 // allocsim simulate: one run of an experiment, written to a results file.
-#include <H5Cpp.h>
 
 #include <chrono>
 #include <iostream>
 #include <sstream>
 
+#include "allocsim/results/results_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/memory_limit.hpp"
@@ -99,7 +99,7 @@ int simulate_command(const Arguments& args) {
   if (request.threads < 1) throw InputError("--threads", "must be at least 1");
   request.tool_version = ALLOCSIM_VERSION;
   if (!vm.count("quiet")) request.progress = stderr_progress();
-  H5::Exception::dontPrint();
+  silence_hdf5_diagnostics();
   const SimulationReport report = simulate_to_file(values, request);
   if (!report.infeasibility.empty()) {
     std::cerr << "allocsim simulate: warning: no coupling meets the budgets and capacities under "

@@ -48,6 +48,7 @@ allocsim_layer(results
     results/report_writer.cpp
     results/results_file.cpp
     results/results_reader.cpp
+    results/run_records.cpp
     results/run_store.cpp
   LINKS allocsim::sim allocsim::analysis hdf5::hdf5_cpp hdf5::hdf5)
 
@@ -65,14 +66,16 @@ allocsim_layer(experiments
 
 allocsim_layer(plots
   SOURCES
+    plots/figure_data.cpp
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/results_figures.cpp
     plots/ordering.cpp
     plots/scores.cpp
     plots/series.cpp
     plots/trajectories.cpp
-  LINKS allocsim::core allocsim_gnuplot)
+  LINKS allocsim::results allocsim_gnuplot)
 include(plots/style.cmake)
 
 add_executable(allocsim

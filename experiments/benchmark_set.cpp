@@ -1,7 +1,5 @@
 #include "allocsim/experiments/benchmark_set.hpp"
 
-#include <H5Cpp.h>
-
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -14,9 +12,9 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/sim/engine.hpp"
-#include "allocsim/results/hdf5_io.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {
@@ -148,15 +146,16 @@ ScoreSummary summarise(const std::string& group, const std::vector<CaseScore>& c
   return s;
 }
 
-void write_inputs(const fs::path& folder, H5::H5File& h5, const std::string& name,
-                  const Matrix& allocation, const Matrix& gains) {
+// The case as CSV files and as one run of the inputs' results file.
+void write_inputs(const fs::path& folder, ResultsFile& h5, const std::string& name,
+                  const Matrix& allocation, const TransportProblem& problem) {
   const fs::path case_folder = folder / "inputs" / name;
   fs::create_directories(case_folder);
   write_matrix_csv((case_folder / "allocation.csv").string(), allocation);
-  write_matrix_csv((case_folder / "gains.csv").string(), gains);
-  H5::Group group = h5.createGroup("cases/" + name);
-  write_matrix(group, "allocation", allocation);
-  write_matrix(group, "gains", gains);
+  write_matrix_csv((case_folder / "gains.csv").string(), problem.gains);
+  RunWriter run = h5.create_run(name);
+  run.write_scenario(problem);
+  run.write_matrix(layout::kTotal, allocation);
 }
 
 }  // namespace
@@ -184,14 +183,11 @@ long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions&
   fs::create_directories(folder);
   // Inputs first, truth last: a set without truth.csv is unfinished.
   const std::string h5_path = (folder / "inputs.h5").string();
-  const std::string h5_temporary = temporary_name_for(h5_path);
   std::ostringstream truth;
   truth << "case,family,source,true_epsilon,units,agents,partners\n";
   long k = 0;
   {
-    H5::H5File h5(h5_temporary, H5F_ACC_TRUNC);
-    set_text_attribute(h5, "format", "allocsim-benchmark-inputs");
-    h5.createGroup("cases");
+    ResultsFile h5(h5_path, "", "");
     for (const auto& family : options.families) {
       for (const auto& epsilon_text : options.epsilons) {
         const double epsilon = std::stod(epsilon_text);
@@ -203,15 +199,15 @@ long write_benchmark_set(const std::string& folder_name, const BenchmarkOptions&
               options.source == "model"
                   ? model_allocation(problem, epsilon, options.units, options.seed, k)
                   : price_rule_allocation(problem, epsilon, options.units, options.seed, k);
-          write_inputs(folder, h5, case_name(k), allocation, problem.gains);
+          write_inputs(folder, h5, case_name(k), allocation, problem);
           truth << case_name(k) << "," << family << "," << options.source << ","
                 << format_number(epsilon) << "," << format_number(allocation.sum()) << ","
                 << options.agents << "," << options.partners << "\n";
         }
       }
     }
+    h5.commit();
   }
-  fs::rename(h5_temporary, h5_path);
   AtomicFile truth_file((folder / "truth.csv").string());
   truth_file.stream() << truth.str();
   truth_file.commit();

@@ -15,7 +15,7 @@
 #include "allocsim/results/results_reader.hpp"
 #include "allocsim/results/run_store.hpp"
 #include "allocsim/experiments/simulation.hpp"
-#include "allocsim/results/hdf5_io.hpp"
+#include "allocsim/results/layout.hpp"
 
 namespace allocsim {
 namespace {
@@ -51,8 +51,7 @@ void play_run(const SweepPlan& plan, const RunStore& store, long k,
   ResultsFile part(store.part_path(k), plan.experiment_text, tool_version);
   const std::string run = run_name(k);
   record_run(part, run, static_cast<std::uint64_t>(k), values, settings, nullptr);
-  H5::Group group = part.file().openGroup("runs/" + run);
-  set_integer_attribute(group, "replicate", plan.points[static_cast<std::size_t>(k)].replicate);
+  part.run(run).set_integer(layout::kReplicate, plan.points[static_cast<std::size_t>(k)].replicate);
   part.commit();
 }
 

@@ -1,4 +1,4 @@
-#include "allocsim/results/hdf5_io.hpp"
+#include "hdf5_io.hpp"
 
 #include <algorithm>
 
@@ -21,6 +21,23 @@ hsize_t rows_per_chunk(hsize_t rows, hsize_t cols) {
 }
 
 }  // namespace
+
+std::vector<std::string> read_text_dataset(const H5::DataSet& dataset) {
+  const H5::DataSpace space = dataset.getSpace();
+  hsize_t rows = 0;
+  if (space.getSimpleExtentNdims() == 1) space.getSimpleExtentDims(&rows);
+  std::vector<char*> raw(rows, nullptr);
+  if (rows == 0) return {};
+  const H5::StrType type = dataset.getStrType();
+  if (!type.isVariableStr()) return std::vector<std::string>(rows);
+  dataset.read(raw.data(), type);
+  std::vector<std::string> values;
+  for (char* text : raw) values.emplace_back(text ? text : "");
+  H5::DataSet::vlenReclaim(raw.data(), type, space);
+  return values;
+}
+
+std::string leaf_name(const std::string& path) { return path.substr(path.rfind('/') + 1); }
 
 H5::StrType text_type() {
   H5::StrType type(H5::PredType::C_S1, H5T_VARIABLE);

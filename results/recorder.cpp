@@ -1,8 +1,9 @@
-#include "allocsim/results/recorder.hpp"
-
+// AllocationRecorder: snapshots streamed into extendable, chunked datasets.
 #include <algorithm>
 
-#include "allocsim/results/hdf5_io.hpp"
+#include "allocsim/results/layout.hpp"
+#include "hdf5_io.hpp"
+#include "run_group.hpp"
 
 namespace allocsim {
 namespace {
@@ -38,47 +39,57 @@ void append(H5::DataSet& ds, int rank, hsize_t at, const hsize_t* row_shape, con
 
 }  // namespace
 
-void write_scenario(H5::Group& run_group, const TransportProblem& problem) {
-  H5::Group scenario = run_group.createGroup("scenario");
-  write_matrix(scenario, "gains", problem.gains);
-  write_vector(scenario, "budgets", problem.budgets);
-  write_vector(scenario, "capacities", problem.capacities);
-  if (problem.access) write_access(scenario, "access", *problem.access);
+AllocationRecorder RunWriter::record_allocation(long agents, long partners) {
+  return write_guarded(group_->path, [&]() -> AllocationRecorder {
+    auto state = std::make_unique<AllocationRecorder::State>();
+    state->run_group = group_->group;
+  state->path = group_->path;
+    state->allocation = group_->group.createGroup(layout::kAllocation);
+    state->agents = agents;
+    state->partners = partners;
+    const hsize_t snapshot_chunk[3] = {1, static_cast<hsize_t>(agents),
+                                       static_cast<hsize_t>(partners)};
+    state->snapshots = extendable(state->allocation, leaf_name(layout::kSnapshots),
+                                  H5::PredType::IEEE_F64LE, 3, snapshot_chunk);
+    const hsize_t round_chunk[1] = {256};
+    state->round_end = extendable(state->allocation, leaf_name(layout::kRoundEnd),
+                                  H5::PredType::STD_I64LE, 1, round_chunk);
+    return AllocationRecorder(std::move(state));
+  });
 }
 
-AllocationRecorder::AllocationRecorder(H5::Group& run_group, long agents, long partners)
-    : run_group_(run_group),
-      allocation_(run_group.createGroup("allocation")),
-      agents_(agents),
-      partners_(partners) {
-  const hsize_t snapshot_chunk[3] = {1, static_cast<hsize_t>(agents), static_cast<hsize_t>(partners)};
-  snapshots_ = extendable(allocation_, "snapshots", H5::PredType::IEEE_F64LE, 3, snapshot_chunk);
-  const hsize_t round_chunk[1] = {256};
-  round_end_ = extendable(allocation_, "round_end", H5::PredType::STD_I64LE, 1, round_chunk);
-}
+AllocationRecorder::AllocationRecorder(std::unique_ptr<State> state) : state_(std::move(state)) {}
+AllocationRecorder::~AllocationRecorder() = default;
+AllocationRecorder::AllocationRecorder(AllocationRecorder&&) noexcept = default;
 
 void AllocationRecorder::add_snapshot(const Matrix& counts, long round_end, const Vector* prices) {
-  const hsize_t snapshot_shape[3] = {1, static_cast<hsize_t>(agents_),
-                                     static_cast<hsize_t>(partners_)};
-  append(snapshots_, 3, count_, snapshot_shape, counts.data(), H5::PredType::NATIVE_DOUBLE);
-  const long long end = round_end;
-  const hsize_t scalar_shape[1] = {1};
-  append(round_end_, 1, count_, scalar_shape, &end, H5::PredType::NATIVE_LLONG);
-  if (prices) {
-    const hsize_t price_shape[2] = {1, static_cast<hsize_t>(partners_)};
-    if (!has_prices_) {
-      const hsize_t price_chunk[2] = {std::max<hsize_t>(1, std::min<hsize_t>(64, 131072 / std::max<long>(1, partners_))),
-                                      static_cast<hsize_t>(partners_)};
-      prices_ = extendable(run_group_, "prices", H5::PredType::IEEE_F64LE, 2, price_chunk);
-      has_prices_ = true;
+  return write_guarded(state_->path, [&]() -> void {
+    State& s = *state_;
+    const hsize_t snapshot_shape[3] = {1, static_cast<hsize_t>(s.agents),
+                                       static_cast<hsize_t>(s.partners)};
+    append(s.snapshots, 3, s.count, snapshot_shape, counts.data(), H5::PredType::NATIVE_DOUBLE);
+    const long long end = round_end;
+    const hsize_t scalar_shape[1] = {1};
+    append(s.round_end, 1, s.count, scalar_shape, &end, H5::PredType::NATIVE_LLONG);
+    if (prices) {
+      const hsize_t price_shape[2] = {1, static_cast<hsize_t>(s.partners)};
+      if (!s.has_prices) {
+        const hsize_t price_chunk[2] = {
+            std::max<hsize_t>(1, std::min<hsize_t>(64, 131072 / std::max<long>(1, s.partners))),
+            static_cast<hsize_t>(s.partners)};
+        s.prices = extendable(s.run_group, layout::kPrices, H5::PredType::IEEE_F64LE, 2, price_chunk);
+        s.has_prices = true;
+      }
+      append(s.prices, 2, s.count, price_shape, prices->data(), H5::PredType::NATIVE_DOUBLE);
     }
-    append(prices_, 2, count_, price_shape, prices->data(), H5::PredType::NATIVE_DOUBLE);
-  }
-  ++count_;
+    ++s.count;
+  });
 }
 
 void AllocationRecorder::finish(const RunResult& result) {
-  write_matrix(allocation_, "total", result.total);
+  return write_guarded(state_->path, [&]() -> void {
+    write_matrix(state_->allocation, leaf_name(layout::kTotal), result.total);
+  });
 }
 
 }  // namespace allocsim

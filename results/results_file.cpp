@@ -4,12 +4,58 @@
 #include <cstdio>
 #include <cstring>
 #include <ctime>
+#include <filesystem>
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
-#include "allocsim/results/hdf5_io.hpp"
+#include "allocsim/results/layout.hpp"
+#include "hdf5_io.hpp"
+#include "run_group.hpp"
 
 namespace allocsim {
+namespace {
+
+std::string runs_path(const std::string& name) {
+  return std::string("/") + layout::kRuns + "/" + name;
+}
+
+// Closes `file` and renames `temporary` onto `path`; InputError naming
+// `path` with the system's reason otherwise (the temporary is removed).
+void close_and_rename(H5::H5File& file, const std::string& temporary, const std::string& path) {
+  try {
+    file.flush(H5F_SCOPE_GLOBAL);
+    file.close();
+  } catch (const H5::Exception& e) {
+    std::remove(temporary.c_str());
+    throw InputError(path, "could not be written completely (" + e.getDetailMsg() + ")");
+  }
+  if (std::rename(temporary.c_str(), path.c_str()) != 0) {
+    const std::string reason = std::strerror(errno);
+    std::remove(temporary.c_str());
+    throw InputError(path, "could not be written (" + reason + ")");
+  }
+}
+
+void close_quietly(H5::H5File& file) {
+  try {
+    file.close();
+  } catch (const H5::Exception&) {
+  }
+}
+
+}  // namespace
+
+H5::Group open_or_create_groups(H5::Group group, const std::string& path) {
+  std::size_t begin = 0;
+  while (begin < path.size()) {
+    const std::size_t slash = path.find('/', begin);
+    const std::string name = path.substr(begin, slash == std::string::npos ? slash : slash - begin);
+    group = group.nameExists(name) ? group.openGroup(name) : group.createGroup(name);
+    if (slash == std::string::npos) break;
+    begin = slash + 1;
+  }
+  return group;
+}
 
 std::string run_name(long index) {
   char name[32];
@@ -26,52 +72,173 @@ std::string utc_timestamp() {
   return text;
 }
 
+void silence_hdf5_diagnostics() { H5::Exception::dontPrint(); }
+
+// ---- RunWriter ----
+
+RunWriter::RunWriter(std::shared_ptr<Group> group) : group_(std::move(group)) {}
+
+void RunWriter::set_text(const std::string& name, const std::string& value) {
+  return write_guarded(group_->path, [&]() -> void {
+    set_text_attribute(group_->group, name, value);
+  });
+}
+void RunWriter::set_number(const std::string& name, double value) {
+  return write_guarded(group_->path, [&]() -> void {
+    set_number_attribute(group_->group, name, value);
+  });
+}
+void RunWriter::set_integer(const std::string& name, long long value) {
+  return write_guarded(group_->path, [&]() -> void {
+    set_integer_attribute(group_->group, name, value);
+  });
+}
+
+void RunWriter::write_matrix(const std::string& path, const Matrix& values) {
+  return write_guarded(group_->path, [&]() -> void {
+    const std::size_t slash = path.rfind('/');
+    H5::Group parent = slash == std::string::npos
+                           ? group_->group
+                           : open_or_create_groups(group_->group, path.substr(0, slash));
+    const std::string name = slash == std::string::npos ? path : path.substr(slash + 1);
+    if (parent.nameExists(name)) parent.unlink(name);
+    allocsim::write_matrix(parent, name, values);
+  });
+}
+
+void RunWriter::write_scenario(const TransportProblem& problem) {
+  return write_guarded(group_->path, [&]() -> void {
+    H5::Group scenario = open_or_create_groups(group_->group, layout::kScenario);
+    allocsim::write_matrix(scenario, leaf_name(layout::kGains), problem.gains);
+    write_vector(scenario, leaf_name(layout::kBudgets), problem.budgets);
+    write_vector(scenario, leaf_name(layout::kCapacities), problem.capacities);
+    if (problem.access) write_access(scenario, leaf_name(layout::kAccess), *problem.access);
+  });
+}
+
+void RunWriter::write_labels(const std::vector<std::string>& agents,
+                             const std::vector<std::string>& partners) {
+  if (agents.empty() && partners.empty()) return;
+  H5::Group labels = open_or_create_groups(group_->group, layout::kLabels);
+  if (!agents.empty()) write_texts(labels, leaf_name(layout::kAgentLabels), agents);
+  if (!partners.empty()) write_texts(labels, leaf_name(layout::kPartnerLabels), partners);
+}
+
+// ---- ResultsFile ----
+
+struct ResultsFile::File {
+  H5::H5File file;
+};
+
 ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
                          const std::string& tool_version)
-    : path_(std::move(path)), temporary_(temporary_name_for(path_)) {
+    : path_(std::move(path)), temporary_(temporary_name_for(path_)), file_(std::make_unique<File>()) {
+  silence_hdf5_diagnostics();
   try {
-    file_ = H5::H5File(temporary_, H5F_ACC_TRUNC);
+    file_->file = H5::H5File(temporary_, H5F_ACC_TRUNC);
   } catch (const H5::Exception&) {
     std::remove(temporary_.c_str());
     throw InputError(path_, "cannot be written; check that the folder exists and is writable");
   }
-  set_text_attribute(file_, "format", kResultsFormat);
-  set_integer_attribute(file_, "format_version", kResultsFormatVersion);
-  set_text_attribute(file_, "tool_version", tool_version);
-  set_text_attribute(file_, "created_utc", utc_timestamp());
-  set_text_attribute(file_, "experiment", experiment_text);
-  file_.createGroup("runs");
+  H5::H5File& f = file_->file;
+  set_text_attribute(f, layout::kFormatAttribute, layout::kResultsFormat);
+  set_integer_attribute(f, layout::kFormatVersion, layout::kResultsFormatVersion);
+  set_text_attribute(f, layout::kToolVersion, tool_version);
+  set_text_attribute(f, layout::kCreatedUtc, utc_timestamp());
+  set_text_attribute(f, layout::kExperiment, experiment_text);
+  f.createGroup(layout::kRuns);
 }
 
 ResultsFile::~ResultsFile() {
   if (committed_) return;
-  try {
-    file_.close();
-  } catch (const H5::Exception&) {
-  }
+  close_quietly(file_->file);
   std::remove(temporary_.c_str());
 }
 
-H5::Group ResultsFile::create_run(const std::string& name) {
-  return file_.createGroup("/runs/" + name);
+RunWriter ResultsFile::create_run(const std::string& name) {
+  return write_guarded(path_, [&]() -> RunWriter {
+    return RunWriter(std::make_shared<RunWriter::Group>(
+        RunWriter::Group{file_->file.createGroup(runs_path(name)), path_}));
+  });
+}
+
+RunWriter ResultsFile::run(const std::string& name) {
+  return write_guarded(path_, [&]() -> RunWriter {
+    return RunWriter(
+        std::make_shared<RunWriter::Group>(RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
+  });
+}
+
+void ResultsFile::copy_run_from(const std::string& other_path, const std::string& run) {
+  return write_guarded(path_, [&]() -> void {
+    const std::string source = runs_path(run);
+    try {
+      const H5::H5File other(other_path, H5F_ACC_RDONLY);
+      if (H5Ocopy(other.getId(), source.c_str(), file_->file.getId(), source.c_str(), H5P_DEFAULT,
+                  H5P_DEFAULT) >= 0) {
+        return;
+      }
+    } catch (const H5::Exception&) {
+    }
+    throw InputError(other_path, "could not be copied into " + path_);
+  });
 }
 
 void ResultsFile::write_summary(const SummaryTable& table) {
-  H5::Group summary = file_.createGroup("summary");
-  for (const auto& [name, column] : table.texts) write_texts(summary, name, column);
-  for (const auto& [name, column] : table.numbers) {
-    write_vector(summary, name, Eigen::Map<const Vector>(column.data(), static_cast<Eigen::Index>(column.size())));
-  }
+  return write_guarded(path_, [&]() -> void {
+    H5::Group summary = file_->file.createGroup(layout::kSummary);
+    for (const auto& [name, column] : table.texts) write_texts(summary, name, column);
+    for (const auto& [name, column] : table.numbers) {
+      write_vector(summary, name,
+                   Eigen::Map<const Vector>(column.data(), static_cast<Eigen::Index>(column.size())));
+    }
+  });
 }
 
 void ResultsFile::commit() {
-  file_.flush(H5F_SCOPE_GLOBAL);
-  file_.close();
-  if (std::rename(temporary_.c_str(), path_.c_str()) != 0) {
-    const std::string reason = std::strerror(errno);
+  close_and_rename(file_->file, temporary_, path_);
+  committed_ = true;
+}
+
+// ---- ResultsUpdate ----
+
+struct ResultsUpdate::File {
+  H5::H5File file;
+};
+
+ResultsUpdate::ResultsUpdate(std::string path)
+    : path_(std::move(path)), temporary_(temporary_name_for(path_)), file_(std::make_unique<File>()) {
+  silence_hdf5_diagnostics();
+  std::error_code error;
+  std::filesystem::copy_file(path_, temporary_, std::filesystem::copy_options::overwrite_existing,
+                             error);
+  if (error) {
     std::remove(temporary_.c_str());
-    throw InputError(path_, "could not be written (" + reason + ")");
+    throw InputError(path_, "cannot be copied for writing (" + error.message() + ")");
   }
+  try {
+    file_->file = H5::H5File(temporary_, H5F_ACC_RDWR);
+  } catch (const H5::Exception&) {
+    std::remove(temporary_.c_str());
+    throw InputError(path_, "cannot be opened for writing");
+  }
+}
+
+ResultsUpdate::~ResultsUpdate() {
+  if (committed_) return;
+  close_quietly(file_->file);
+  std::remove(temporary_.c_str());
+}
+
+RunWriter ResultsUpdate::run(const std::string& name) {
+  return write_guarded(path_, [&]() -> RunWriter {
+    return RunWriter(
+        std::make_shared<RunWriter::Group>(RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
+  });
+}
+
+void ResultsUpdate::commit() {
+  close_and_rename(file_->file, temporary_, path_);
   committed_ = true;
 }
 

@@ -6,7 +6,9 @@
 
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
+#include "hdf5_io.hpp"
 
 namespace allocsim {
 namespace {
@@ -47,8 +49,6 @@ std::vector<std::string> member_names(const H5::Group& group) {
   return names;
 }
 
-}  // namespace
-
 Attributes read_attributes(const H5::H5Object& object) {
   Attributes attributes;
   for (int k = 0; k < object.getNumAttrs(); ++k) {
@@ -57,6 +57,45 @@ Attributes read_attributes(const H5::H5Object& object) {
   }
   return attributes;
 }
+
+std::string type_name(const H5::DataSet& ds) {
+  const H5::DataType type = ds.getDataType();
+  switch (type.getClass()) {
+    case H5T_FLOAT:
+      return "float" + std::to_string(8 * type.getSize());
+    case H5T_INTEGER: {
+      const bool is_signed = ds.getIntType().getSign() != H5T_SGN_NONE;
+      return std::string(is_signed ? "int" : "uint") + std::to_string(8 * type.getSize());
+    }
+    case H5T_STRING:
+      return "text";
+    default:
+      return "other";
+  }
+}
+
+void collect_datasets(const H5::Group& group, const std::string& prefix,
+                      std::vector<DatasetInfo>& out) {
+  for (const auto& name : member_names(group)) {
+    const H5O_type_t kind = group.childObjType(name);
+    if (kind == H5O_TYPE_GROUP) {
+      collect_datasets(group.openGroup(name), prefix + name + "/", out);
+    } else if (kind == H5O_TYPE_DATASET) {
+      const H5::DataSet ds = group.openDataSet(name);
+      DatasetInfo info{prefix + name, type_name(ds), {}};
+      for (const hsize_t d : shape_of(ds)) info.shape.push_back(d);
+      out.push_back(std::move(info));
+    }
+  }
+}
+
+std::string run_path(const std::string& run) { return std::string(layout::kRuns) + "/" + run; }
+
+}  // namespace
+
+struct ResultsReader::File {
+  H5::H5File file;
+};
 
 std::optional<double> attribute_number(const Attributes& attributes, const std::string& name) {
   for (const auto& [key, value] : attributes) {
@@ -82,8 +121,8 @@ std::string attribute_text(const Attributes& attributes, const std::string& name
   return "";
 }
 
-ResultsReader::ResultsReader(const std::string& path) : path_(path) {
-  H5::Exception::dontPrint();
+ResultsReader::ResultsReader(const std::string& path) : path_(path), file_(std::make_unique<File>()) {
+  silence_hdf5_diagnostics();
   if (!std::filesystem::is_regular_file(path)) {
     throw InputError(path, "cannot be read (does the file exist?)");
   }
@@ -97,147 +136,209 @@ ResultsReader::ResultsReader(const std::string& path) : path_(path) {
                            "written by allocsim simulate or allocsim run");
   }
   try {
-    file_ = H5::H5File(path, H5F_ACC_RDONLY);
+    file_->file = H5::H5File(path, H5F_ACC_RDONLY);
   } catch (const H5::Exception&) {
     throw InputError(path, "cannot be opened as HDF5 (truncated or damaged?)");
   }
-  const std::string format = attribute_text(root_attributes(), "format");
-  if (format != kResultsFormat) {
+  const Attributes root = root_attributes();
+  const std::string format = attribute_text(root, layout::kFormatAttribute);
+  if (format != layout::kResultsFormat) {
     throw InputError(path, "is HDF5 but not an allocsim results file (its format attribute is '" +
-                               format + "', expected '" + kResultsFormat + "')");
+                               format + "', expected '" + layout::kResultsFormat + "')");
+  }
+  const auto version = attribute_number(root, layout::kFormatVersion);
+  if (version && *version > static_cast<double>(layout::kResultsFormatVersion)) {
+    throw InputError(path, "is of results format version " + attribute_text(root, layout::kFormatVersion) +
+                               ", newer than this allocsim reads (" +
+                               std::to_string(layout::kResultsFormatVersion) +
+                               "); use a newer allocsim");
   }
 }
 
-Attributes ResultsReader::root_attributes() const { return read_attributes(file_); }
+ResultsReader::~ResultsReader() = default;
+ResultsReader::ResultsReader(ResultsReader&&) noexcept = default;
+
+Attributes ResultsReader::root_attributes() const { return read_attributes(file_->file); }
 
 std::vector<std::string> ResultsReader::runs() const {
-  if (!file_.nameExists("runs")) return {};
-  return member_names(file_.openGroup("runs"));
+  return read_guarded(path_, [&]() -> std::vector<std::string> {
+    if (!file_->file.nameExists(layout::kRuns)) return {};
+    return member_names(file_->file.openGroup(layout::kRuns));
+  });
 }
 
 void ResultsReader::require_run(const std::string& run) const {
-  const auto names = runs();
-  if (std::find(names.begin(), names.end(), run) != names.end()) return;
-  std::string listing;
-  for (std::size_t k = 0; k < names.size() && k < 5; ++k) listing += (k ? ", " : "") + names[k];
-  if (names.size() > 5) listing += ", ...";
-  throw InputError(path_, "holds no run '" + run + "' (it holds " +
-                              (names.empty() ? std::string("no runs") : listing) + ")");
+  return read_guarded(path_, [&]() -> void {
+    const auto names = runs();
+    if (std::find(names.begin(), names.end(), run) != names.end()) return;
+    std::string listing;
+    for (std::size_t k = 0; k < names.size() && k < 5; ++k) listing += (k ? ", " : "") + names[k];
+    if (names.size() > 5) listing += ", ...";
+    throw InputError(path_, "holds no run '" + run + "' (it holds " +
+                                (names.empty() ? std::string("no runs") : listing) + ")");
+  });
 }
 
 Attributes ResultsReader::run_attributes(const std::string& run) const {
-  require_run(run);
-  return read_attributes(file_.openGroup("runs/" + run));
+  return read_guarded(path_, [&]() -> Attributes {
+    require_run(run);
+    return read_attributes(file_->file.openGroup(run_path(run)));
+  });
 }
 
 Attributes ResultsReader::group_attributes(const std::string& run,
                                            const std::string& path) const {
   if (!has(run, path)) return {};
-  return read_attributes(file_.openGroup("runs/" + run + "/" + path));
+  return read_attributes(file_->file.openGroup(run_path(run) + "/" + path));
+}
+
+std::vector<DatasetInfo> ResultsReader::datasets(const std::string& run) const {
+  return read_guarded(path_, [&]() -> std::vector<DatasetInfo> {
+    require_run(run);
+    std::vector<DatasetInfo> out;
+    collect_datasets(file_->file.openGroup(run_path(run)), "", out);
+    return out;
+  });
 }
 
 bool ResultsReader::has(const std::string& run, const std::string& path) const {
-  const std::string full = "runs/" + run + "/" + path;
-  // nameExists checks one link at a time: walk the path.
-  std::string prefix;
-  std::size_t begin = 0;
-  for (;;) {
-    const std::size_t slash = full.find('/', begin);
-    prefix = full.substr(0, slash);
-    if (!file_.nameExists(prefix)) return false;
-    if (slash == std::string::npos) return true;
-    begin = slash + 1;
-  }
+  return read_guarded(path_, [&]() -> bool {
+    const std::string full = run_path(run) + "/" + path;
+    // nameExists checks one link at a time: walk the path.
+    std::string prefix;
+    std::size_t begin = 0;
+    for (;;) {
+      const std::size_t slash = full.find('/', begin);
+      prefix = full.substr(0, slash);
+      if (!file_->file.nameExists(prefix)) return false;
+      if (slash == std::string::npos) return true;
+      begin = slash + 1;
+    }
+  });
 }
 
-H5::DataSet ResultsReader::open_dataset(const std::string& run, const std::string& path) const {
-  if (!has(run, path)) throw InputError(path_, "run " + run + " holds no dataset '" + path + "'");
-  return file_.openDataSet("runs/" + run + "/" + path);
+namespace {
+
+H5::DataSet open_dataset(const ResultsReader& reader, const H5::H5File& file,
+                         const std::string& run, const std::string& path) {
+  if (!reader.has(run, path))
+    throw InputError(reader.path(), "run " + run + " holds no dataset '" + path + "'");
+  return file.openDataSet(run_path(run) + "/" + path);
 }
+
+}  // namespace
 
 Matrix ResultsReader::read_matrix(const std::string& run, const std::string& path) const {
-  const H5::DataSet dataset = open_dataset(run, path);
-  const auto dims = shape_of(dataset);
-  if (dims.size() != 2) throw InputError(path_, run + "/" + path + " is not a matrix");
-  Matrix values(static_cast<Eigen::Index>(dims[0]), static_cast<Eigen::Index>(dims[1]));
-  dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
-  return values;
+  return read_guarded(path_, [&]() -> Matrix {
+    const H5::DataSet dataset = open_dataset(*this, file_->file, run, path);
+    const auto dims = shape_of(dataset);
+    if (dims.size() != 2) throw InputError(path_, run + "/" + path + " is not a matrix");
+    Matrix values(static_cast<Eigen::Index>(dims[0]), static_cast<Eigen::Index>(dims[1]));
+    dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+    return values;
+  });
 }
 
 Vector ResultsReader::read_vector(const std::string& run, const std::string& path) const {
-  const H5::DataSet dataset = open_dataset(run, path);
-  const auto dims = shape_of(dataset);
-  if (dims.size() != 1) throw InputError(path_, run + "/" + path + " is not a vector");
-  Vector values(static_cast<Eigen::Index>(dims[0]));
-  dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
-  return values;
+  return read_guarded(path_, [&]() -> Vector {
+    const H5::DataSet dataset = open_dataset(*this, file_->file, run, path);
+    const auto dims = shape_of(dataset);
+    if (dims.size() != 1) throw InputError(path_, run + "/" + path + " is not a vector");
+    Vector values(static_cast<Eigen::Index>(dims[0]));
+    dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+    return values;
+  });
 }
 
 long ResultsReader::snapshot_count(const std::string& run) const {
-  if (!has(run, "allocation/snapshots")) return 0;
-  return static_cast<long>(shape_of(open_dataset(run, "allocation/snapshots"))[0]);
+  return read_guarded(path_, [&]() -> long {
+    if (!has(run, layout::kSnapshots)) return 0;
+    return static_cast<long>(shape_of(open_dataset(*this, file_->file, run, layout::kSnapshots))[0]);
+  });
 }
 
 Matrix ResultsReader::read_snapshot(const std::string& run, long k) const {
-  const H5::DataSet dataset = open_dataset(run, "allocation/snapshots");
-  const auto dims = shape_of(dataset);
-  if (k < 0 || static_cast<hsize_t>(k) >= dims[0]) {
-    throw InputError(path_, run + " has " + std::to_string(dims[0]) + " snapshots, not " +
-                                std::to_string(k + 1));
-  }
-  H5::DataSpace file_space = dataset.getSpace();
-  const hsize_t start[3] = {static_cast<hsize_t>(k), 0, 0};
-  const hsize_t count[3] = {1, dims[1], dims[2]};
-  file_space.selectHyperslab(H5S_SELECT_SET, count, start);
-  const H5::DataSpace memory_space(3, count);
-  Matrix values(static_cast<Eigen::Index>(dims[1]), static_cast<Eigen::Index>(dims[2]));
-  dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE, memory_space, file_space);
-  return values;
+  return read_guarded(path_, [&]() -> Matrix {
+    const H5::DataSet dataset = open_dataset(*this, file_->file, run, layout::kSnapshots);
+    const auto dims = shape_of(dataset);
+    if (k < 0 || static_cast<hsize_t>(k) >= dims[0]) {
+      throw InputError(path_, run + " has " + std::to_string(dims[0]) + " snapshots, not " +
+                                  std::to_string(k + 1));
+    }
+    H5::DataSpace file_space = dataset.getSpace();
+    const hsize_t start[3] = {static_cast<hsize_t>(k), 0, 0};
+    const hsize_t count[3] = {1, dims[1], dims[2]};
+    file_space.selectHyperslab(H5S_SELECT_SET, count, start);
+    const H5::DataSpace memory_space(3, count);
+    Matrix values(static_cast<Eigen::Index>(dims[1]), static_cast<Eigen::Index>(dims[2]));
+    dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE, memory_space, file_space);
+    return values;
+  });
 }
 
 TransportProblem ResultsReader::read_scenario(const std::string& run) const {
-  TransportProblem problem;
-  problem.gains = read_matrix(run, "scenario/gains");
-  problem.budgets = read_vector(run, "scenario/budgets");
-  problem.capacities = read_vector(run, "scenario/capacities");
-  if (has(run, "scenario/access")) {
-    const H5::DataSet dataset = open_dataset(run, "scenario/access");
-    AccessMask access(problem.gains.rows(), problem.gains.cols());
-    dataset.read(access.data(), H5::PredType::NATIVE_UINT8);
-    problem.access = std::move(access);
+  return read_guarded(path_, [&]() -> TransportProblem {
+    TransportProblem problem;
+    problem.gains = read_matrix(run, layout::kGains);
+    problem.budgets = read_vector(run, layout::kBudgets);
+    problem.capacities = read_vector(run, layout::kCapacities);
+    if (has(run, layout::kAccess)) {
+      const H5::DataSet dataset = open_dataset(*this, file_->file, run, layout::kAccess);
+      AccessMask access(problem.gains.rows(), problem.gains.cols());
+      dataset.read(access.data(), H5::PredType::NATIVE_UINT8);
+      problem.access = std::move(access);
+    }
+    return problem;
+  });
+}
+
+std::vector<std::string> ResultsReader::read_texts(const std::string& run,
+                                                  const std::string& path) const {
+  if (!has(run, path)) return {};
+  const H5::DataSet dataset = open_dataset(*this, file_->file, run, path);
+  if (dataset.getDataType().getClass() != H5T_STRING || shape_of(dataset).size() != 1) {
+    throw InputError(path_, run + "/" + path + " is not a list of texts");
   }
-  return problem;
+  return read_text_dataset(dataset);
+}
+
+std::vector<DatasetInfo> ResultsReader::summary_columns() const {
+  return read_guarded(path_, [&]() -> std::vector<DatasetInfo> {
+    std::vector<DatasetInfo> out;
+    if (file_->file.nameExists(layout::kSummary))
+      collect_datasets(file_->file.openGroup(layout::kSummary), "", out);
+    return out;
+  });
 }
 
 std::vector<std::pair<std::string, std::vector<double>>> ResultsReader::summary_numbers() const {
-  std::vector<std::pair<std::string, std::vector<double>>> columns;
-  if (!file_.nameExists("summary")) return columns;
-  const H5::Group summary = file_.openGroup("summary");
-  for (const auto& name : member_names(summary)) {
-    const H5::DataSet dataset = summary.openDataSet(name);
-    if (dataset.getDataType().getClass() == H5T_STRING) continue;
-    std::vector<double> values(static_cast<std::size_t>(shape_of(dataset)[0]));
-    dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
-    columns.emplace_back(name, std::move(values));
-  }
-  return columns;
+  return read_guarded(path_, [&]() -> std::vector<std::pair<std::string, std::vector<double>>> {
+    std::vector<std::pair<std::string, std::vector<double>>> columns;
+    if (!file_->file.nameExists(layout::kSummary)) return columns;
+    const H5::Group summary = file_->file.openGroup(layout::kSummary);
+    for (const auto& name : member_names(summary)) {
+      const H5::DataSet dataset = summary.openDataSet(name);
+      if (dataset.getDataType().getClass() == H5T_STRING) continue;
+      std::vector<double> values(static_cast<std::size_t>(shape_of(dataset)[0]));
+      dataset.read(values.data(), H5::PredType::NATIVE_DOUBLE);
+      columns.emplace_back(name, std::move(values));
+    }
+    return columns;
+  });
 }
 
 std::vector<std::pair<std::string, std::vector<std::string>>> ResultsReader::summary_texts() const {
-  std::vector<std::pair<std::string, std::vector<std::string>>> columns;
-  if (!file_.nameExists("summary")) return columns;
-  const H5::Group summary = file_.openGroup("summary");
-  for (const auto& name : member_names(summary)) {
-    const H5::DataSet dataset = summary.openDataSet(name);
-    if (dataset.getDataType().getClass() != H5T_STRING) continue;
-    const hsize_t rows = shape_of(dataset)[0];
-    std::vector<char*> raw(rows);
-    dataset.read(raw.data(), dataset.getStrType());
-    std::vector<std::string> values(raw.begin(), raw.end());
-    H5::DataSet::vlenReclaim(raw.data(), dataset.getStrType(), dataset.getSpace());
-    columns.emplace_back(name, std::move(values));
-  }
-  return columns;
+  return read_guarded(path_, [&]() -> std::vector<std::pair<std::string, std::vector<std::string>>> {
+    std::vector<std::pair<std::string, std::vector<std::string>>> columns;
+    if (!file_->file.nameExists(layout::kSummary)) return columns;
+    const H5::Group summary = file_->file.openGroup(layout::kSummary);
+    for (const auto& name : member_names(summary)) {
+      const H5::DataSet dataset = summary.openDataSet(name);
+      if (dataset.getDataType().getClass() != H5T_STRING) continue;
+      columns.emplace_back(name, read_text_dataset(dataset));
+    }
+    return columns;
+  });
 }
 
 }  // namespace allocsim

@@ -1,7 +1,5 @@
 #include "allocsim/results/run_store.hpp"
 
-#include <H5Cpp.h>
-
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -11,6 +9,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "allocsim/results/results_reader.hpp"
 
@@ -65,8 +64,8 @@ class SummaryBuilder {
 void add_summary_row(SummaryBuilder& summary, long row, const std::string& run,
                      const ResultsReader& part, const std::vector<std::string>& swept_keys) {
   const Attributes attributes = part.run_attributes(run);
-  summary.text("run", row, run);
-  summary.text("status", row, attribute_text(attributes, "status"));
+  summary.text(layout::kRunColumn, row, run);
+  summary.text(layout::kStatus, row, attribute_text(attributes, layout::kStatus));
   for (const auto& key : swept_keys) {
     const auto number = attribute_number(attributes, key);
     if (number) {
@@ -75,10 +74,10 @@ void add_summary_row(SummaryBuilder& summary, long row, const std::string& run,
       summary.text(key, row, attribute_text(attributes, key));
     }
   }
-  for (const char* key : {"seed", "replicate"}) {
+  for (const char* key : {layout::kSeed, layout::kReplicate}) {
     if (const auto number = attribute_number(attributes, key)) summary.number(key, row, *number);
   }
-  for (const auto& [name, value] : part.group_attributes(run, "analysis")) {
+  for (const auto& [name, value] : part.group_attributes(run, layout::kAnalysis)) {
     if (const auto* d = std::get_if<double>(&value)) summary.number(name, row, *d);
     if (const auto* i = std::get_if<long long>(&value)) summary.number(name, row, static_cast<double>(*i));
   }
@@ -139,12 +138,8 @@ SummaryTable RunStore::merge(long runs, const std::string& experiment_text,
   SummaryBuilder summary(runs);
   for (long index = 0; index < runs; ++index) {
     const std::string run = run_name(index);
-    ResultsReader part(part_path(index));
-    const std::string source = "runs/" + run;
-    if (H5Ocopy(part.file().getId(), source.c_str(), results.file().getId(), source.c_str(),
-                H5P_DEFAULT, H5P_DEFAULT) < 0) {
-      throw InputError(part_path(index), "could not be copied into " + results_path_);
-    }
+    const ResultsReader part(part_path(index));
+    results.copy_run_from(part_path(index), run);
     add_summary_row(summary, index, run, part, swept_keys);
   }
   SummaryTable table = summary.table();

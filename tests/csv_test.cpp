@@ -5,15 +5,16 @@
 #include <fstream>
 
 #include "allocsim/core/error.hpp"
+#include "test_files.hpp"
 
 using namespace allocsim;
 
 namespace {
+
 std::string write_temp(const std::string& name, const std::string& text) {
-  const std::string path = "csv_test_" + name + ".csv";
-  std::ofstream(path) << text;
-  return path;
+  return testing::write_test_file("csv_test_" + name + ".csv", text);
 }
+
 }  // namespace
 
 TEST_CASE("a plain numeric matrix reads without labels") {

@@ -3,6 +3,7 @@
 #include <set>
 
 #include "allocsim/core/error.hpp"
+#include "test_files.hpp"
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
 
@@ -11,9 +12,7 @@ using namespace allocsim;
 namespace {
 
 std::string write_ini(const std::string& name, const std::string& text) {
-  const std::string path = "experiment_keys_test_" + name + ".ini";
-  std::ofstream(path) << text;
-  return path;
+  return testing::write_test_file("experiment_keys_test_" + name + ".ini", text);
 }
 
 }  // namespace

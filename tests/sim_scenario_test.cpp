@@ -3,6 +3,7 @@
 #include <fstream>
 
 #include "allocsim/core/error.hpp"
+#include "test_files.hpp"
 #include "allocsim/sim/scenario.hpp"
 
 using namespace allocsim;
@@ -10,9 +11,7 @@ using namespace allocsim;
 namespace {
 
 std::string write_file(const std::string& name, const std::string& text) {
-  const std::string path = "sim_scenario_test_" + name + ".csv";
-  std::ofstream(path) << text;
-  return path;
+  return testing::write_test_file("sim_scenario_test_" + name + ".csv", text);
 }
 
 }  // namespace

@@ -72,14 +72,14 @@ def add_analysis(group, temperature, rng):
     analysis.create_dataset("entropic", data=entropic_like(total, temperature))
     analysis.create_dataset("exact", data=exact_like(total))
     estimate = temperature * rng.uniform(0.8, 1.25)
-    attributes = {"temperature.epsilon": estimate, "temperature.ci_low": estimate * 0.7,
-                  "temperature.ci_high": estimate * 1.4,
-                  "entropic.total_variation": 0.02 + 0.1 * temperature,
-                  "exact.total_variation": 0.3 + temperature,
-                  "structure.nodf": 40 + 30 * temperature, "structure.wnodf": 30 + 20 * temperature,
-                  "structure.nodf.curveball_null.mean": 35.0, "structure.nodf.curveball_null.sd": 2.0,
-                  "structure.wnodf.fixed_margins_null.mean": 25.0,
-                  "structure.wnodf.fixed_margins_null.sd": 1.5}
+    attributes = {"epsilon": estimate, "epsilon_ci_low": estimate * 0.7,
+                  "epsilon_ci_high": estimate * 1.4,
+                  "entropic_total_variation": 0.02 + 0.1 * temperature,
+                  "exact_total_variation": 0.3 + temperature,
+                  "nodf": 40 + 30 * temperature, "wnodf": 30 + 20 * temperature,
+                  "nodf_null_model": "curveball", "nodf_null_mean": 35.0, "nodf_null_sd": 2.0,
+                  "wnodf_null_model": "fixed-margins", "wnodf_null_mean": 25.0,
+                  "wnodf_null_sd": 1.5}
     for key, value in attributes.items():
         analysis.attrs[key] = value
 

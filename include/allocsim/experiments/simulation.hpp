@@ -3,8 +3,6 @@
 // simulate` does; sweeps call record_run once per run).
 #pragma once
 
-#include <H5Cpp.h>
-
 #include <cstdint>
 #include <string>
 
@@ -37,7 +35,7 @@ struct SimulationReport {
 // Every key as an attribute of the run group: numbers as float64 (int64 for
 // whole-number keys), words, paths and truth values as text; plus seed and
 // status.
-void write_run_parameters(H5::Group& run_group, const ExperimentValues& values,
+void write_run_parameters(RunWriter& run, const ExperimentValues& values,
                           const std::string& status);
 
 // Builds the scenario of run `run_index`, plays the dynamics and writes

@@ -1,31 +1,86 @@
-// A results file (HDF5) in the layout of DESIGN.md section 7, written so
-// that it appears complete or not at all: everything goes to a temporary
-// name beside the target ("<file>.tmp-<pid>") and is renamed onto the target
-// by commit(). A run killed at any point (even by SIGKILL) leaves no file
-// under the final name; destroying the object without commit() removes the
-// temporary file.
+// Writing a results file (layout.hpp, DESIGN.md section 7) so that it
+// appears complete or not at all: everything goes to a temporary name beside
+// the target ("<file>.tmp-<pid>") and is renamed onto the target by commit().
+// A run killed at any point (even by SIGKILL) leaves no file under the final
+// name; destroying the object without commit() removes the temporary file.
 //
-// Root attributes: format = "allocsim-results", format_version (integer),
-// tool_version, created_utc (ISO 8601), experiment (the experiment as INI
-// text). Runs go under /runs/<run>; the summary table under /summary, one
-// 1-D dataset per column and one row per run.
+// Root attributes: format, format_version, tool_version, created_utc (ISO
+// 8601), experiment (the experiment as INI text). Runs go under /runs/<run>
+// (RunWriter); the summary table under /summary, one 1-D dataset per column
+// and one row per run. No HDF5 type appears in this interface.
 #pragma once
 
-#include <H5Cpp.h>
-
+#include <memory>
 #include <string>
 #include <utility>
 #include <vector>
 
-namespace allocsim {
+#include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/core/matrix.hpp"
+#include "allocsim/core/problem.hpp"
+#include "allocsim/sim/engine.hpp"
 
-constexpr const char* kResultsFormat = "allocsim-results";
-constexpr long long kResultsFormatVersion = 1;
+namespace allocsim {
 
 // One row per run; numeric and text columns in insertion order.
 struct SummaryTable {
   std::vector<std::pair<std::string, std::vector<double>>> numbers;
   std::vector<std::pair<std::string, std::vector<std::string>>> texts;
+};
+
+class AllocationRecorder;
+
+// One run group of a results file being written: /runs/<run>. Cheap to copy
+// (it refers to the group); valid while its ResultsFile is open.
+class RunWriter {
+ public:
+  struct Group;
+  explicit RunWriter(std::shared_ptr<Group> group);
+
+  // Attributes of the run group (replaced when present).
+  void set_text(const std::string& name, const std::string& value);
+  void set_number(const std::string& name, double value);
+  void set_integer(const std::string& name, long long value);
+
+  // <run>/scenario: gains, budgets, capacities, access when not full.
+  void write_scenario(const TransportProblem& problem);
+  // <run>/labels/agents and /partners (either may be empty: not written).
+  void write_labels(const std::vector<std::string>& agents, const std::vector<std::string>& partners);
+  // A numeric matrix at a path of layout.hpp, e.g. layout::kTotal (parents created).
+  void write_matrix(const std::string& path, const Matrix& values);
+  // Replaces <run>/analysis with the report: scalar metrics as attributes
+  // (these become /summary columns in a sweep), the exact and entropic
+  // couplings and the display order as datasets.
+  void write_report(const AllocationReport& report);
+  // An empty <run>/analysis group (a run not analysed yet); replaces any.
+  void clear_analysis();
+  // Creates <run>/allocation with empty, extendable snapshots and round_end;
+  // the recorder streams the snapshots (and prices) into it.
+  AllocationRecorder record_allocation(long agents, long partners);
+
+ private:
+  std::shared_ptr<Group> group_;
+};
+
+// Streams one run's allocation into its group, in the layout of layout.hpp:
+//   allocation/snapshots (k x n x m, float64 counts per window; chunked one
+//   snapshot at a time, deflate-compressed, first axis unlimited), round_end
+//   (k, int64: last round of each window, from 1), total (n x m, counts of
+//   the rounds after burn-in); prices (k x m) for rules with prices.
+// Only the current snapshot is held in memory: O(n*m) whatever the rounds.
+class AllocationRecorder : public SnapshotSink {
+ public:
+  struct State;
+  explicit AllocationRecorder(std::unique_ptr<State> state);
+  ~AllocationRecorder() override;
+  AllocationRecorder(AllocationRecorder&&) noexcept;
+
+  void add_snapshot(const Matrix& counts, long round_end, const Vector* prices) override;
+  // Writes allocation/total.
+  void finish(const RunResult& result);
+
+ private:
+  std::unique_ptr<State> state_;
 };
 
 class ResultsFile {
@@ -37,18 +92,41 @@ class ResultsFile {
   ResultsFile& operator=(const ResultsFile&) = delete;
 
   // Creates /runs/<name>.
-  H5::Group create_run(const std::string& name);
+  RunWriter create_run(const std::string& name);
+  // A run created earlier in this file.
+  RunWriter run(const std::string& name);
+  // Copies /runs/<run> of another results file (e.g. a sweep's part) in.
+  void copy_run_from(const std::string& other_path, const std::string& run);
   void write_summary(const SummaryTable& table);
   // Closes the file and renames it onto the target.
   void commit();
 
+  const std::string& path() const { return path_; }
   const std::string& temporary_path() const { return temporary_; }
-  // The open file, for writers that need more than create_run (e.g. copying runs in).
-  H5::H5File& file() { return file_; }
 
  private:
+  struct File;
   std::string path_, temporary_;
-  H5::H5File file_;
+  std::unique_ptr<File> file_;
+  bool committed_ = false;
+};
+
+// Opens an existing results file for adding analyses: the changes go to a
+// copy beside it that replaces the file only on commit().
+class ResultsUpdate {
+ public:
+  explicit ResultsUpdate(std::string path);
+  ~ResultsUpdate();
+  ResultsUpdate(const ResultsUpdate&) = delete;
+  ResultsUpdate& operator=(const ResultsUpdate&) = delete;
+
+  RunWriter run(const std::string& name);
+  void commit();
+
+ private:
+  struct File;
+  std::string path_, temporary_;
+  std::unique_ptr<File> file_;
   bool committed_ = false;
 };
 
@@ -57,5 +135,9 @@ std::string run_name(long index);
 
 // Current UTC time as "2024-05-01T12:00:00Z".
 std::string utc_timestamp();
+
+// Turns off the HDF5 library's own diagnostics on stderr (errors reach the
+// user as one message of ours instead). Idempotent.
+void silence_hdf5_diagnostics();
 
 }  // namespace allocsim

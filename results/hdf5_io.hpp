@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "allocsim/core/error.hpp"
 #include "allocsim/core/matrix.hpp"
 
 namespace allocsim {
@@ -23,6 +24,34 @@ void write_vector(H5::Group& group, const std::string& name, const Vector& value
 void write_access(H5::Group& group, const std::string& name, const AccessMask& values);
 void write_integers(H5::Group& group, const std::string& name, const std::vector<long long>& values);
 void write_texts(H5::Group& group, const std::string& name, const std::vector<std::string>& values);
+
+// A 1-D dataset of variable-length texts.
+std::vector<std::string> read_text_dataset(const H5::DataSet& dataset);
+
+// Runs `read` and turns an HDF5 exception into an InputError naming `path`
+// (a damaged or truncated file).
+template <class Read>
+auto read_guarded(const std::string& path, Read&& read) -> decltype(read()) {
+  try {
+    return read();
+  } catch (const H5::Exception& e) {
+    throw InputError(path, "cannot be read as a results file (" + e.getDetailMsg() + ")");
+  }
+}
+
+// Runs `write` and turns an HDF5 exception into a runtime_error naming
+// `path` (e.g. a full disk); the command line reports it with exit code 1.
+template <class Write>
+auto write_guarded(const std::string& path, Write&& write) -> decltype(write()) {
+  try {
+    return write();
+  } catch (const H5::Exception& e) {
+    throw std::runtime_error(path + ": could not be written (" + e.getDetailMsg() + ")");
+  }
+}
+
+// The last part of a layout path: "allocation/total" -> "total".
+std::string leaf_name(const std::string& path);
 
 // The UTF-8 variable-length string type.
 H5::StrType text_type();

@@ -1,0 +1,98 @@
+// The names of the results file (DESIGN.md section 7): every group, dataset,
+// attribute and summary column that allocsim writes or reads. Writers and
+// readers both take the names from here; a layout name written as a string
+// literal anywhere else is a bug.
+//
+//   /                       format, format_version, tool_version, created_utc, experiment
+//   /runs/<run>/            every effective run parameter ("section.key"), seed, status, ...
+//   /runs/<run>/labels/     agents, partners (text datasets, when known)
+//   /runs/<run>/scenario/   gains (n x m), budgets (n), capacities (m), access (n x m, uint8)
+//   /runs/<run>/allocation/ snapshots (k x n x m), round_end (k), total (n x m)
+//   /runs/<run>/prices      (k x m)
+//   /runs/<run>/analysis/   metrics as attributes; exact, entropic couplings; orders
+//   /summary/               one 1-D dataset per column, one row per run
+//
+// Dataset paths of a run are relative to /runs/<run>.
+#pragma once
+
+namespace allocsim::layout {
+
+// Root attributes.
+inline constexpr char kFormatAttribute[] = "format";
+inline constexpr char kFormatVersion[] = "format_version";
+inline constexpr char kToolVersion[] = "tool_version";
+inline constexpr char kCreatedUtc[] = "created_utc";
+inline constexpr char kExperiment[] = "experiment";
+// The value of the format attribute, and the newest version this build reads.
+inline constexpr char kResultsFormat[] = "allocsim-results";
+inline constexpr long long kResultsFormatVersion = 1;
+
+// Top-level groups.
+inline constexpr char kRuns[] = "runs";
+inline constexpr char kSummary[] = "summary";
+
+// Datasets and groups of a run.
+inline constexpr char kLabels[] = "labels";
+inline constexpr char kAgentLabels[] = "labels/agents";
+inline constexpr char kPartnerLabels[] = "labels/partners";
+inline constexpr char kScenario[] = "scenario";
+inline constexpr char kGains[] = "scenario/gains";
+inline constexpr char kBudgets[] = "scenario/budgets";
+inline constexpr char kCapacities[] = "scenario/capacities";
+inline constexpr char kAccess[] = "scenario/access";
+inline constexpr char kAllocation[] = "allocation";
+inline constexpr char kSnapshots[] = "allocation/snapshots";
+inline constexpr char kRoundEnd[] = "allocation/round_end";
+inline constexpr char kTotal[] = "allocation/total";
+inline constexpr char kPrices[] = "prices";
+inline constexpr char kAnalysis[] = "analysis";
+inline constexpr char kExactCoupling[] = "analysis/exact";
+inline constexpr char kEntropicCoupling[] = "analysis/entropic";
+inline constexpr char kRowOrder[] = "analysis/row_order";
+inline constexpr char kColumnOrder[] = "analysis/column_order";
+
+// Attributes of a run group (besides every experiment key, by its name).
+inline constexpr char kSeed[] = "seed";
+inline constexpr char kStatus[] = "status";
+inline constexpr char kRunIndex[] = "run_index";
+inline constexpr char kReplicate[] = "replicate";
+inline constexpr char kFeasible[] = "feasible";
+inline constexpr char kSeconds[] = "seconds";
+inline constexpr char kUnplacedUnits[] = "unplaced_units";
+inline constexpr char kUnitsAfterBurnIn[] = "units_after_burn_in";
+// Values of the status attribute.
+inline constexpr char kStatusRunning[] = "running";
+inline constexpr char kStatusComplete[] = "complete";
+
+// Attributes of a run's analysis group (they become /summary columns).
+inline constexpr char kTemperatureStatus[] = "temperature_status";
+inline constexpr char kEpsilon[] = "epsilon";
+inline constexpr char kEpsilonStderr[] = "epsilon_stderr";
+inline constexpr char kEpsilonCiLow[] = "epsilon_ci_low";
+inline constexpr char kEpsilonCiHigh[] = "epsilon_ci_high";
+inline constexpr char kConfidence[] = "confidence";
+inline constexpr char kObservedGain[] = "observed_gain";
+inline constexpr char kOptimumGain[] = "optimum_gain";
+inline constexpr char kIndependentGain[] = "independent_gain";
+inline constexpr char kNodf[] = "nodf";
+inline constexpr char kWnodf[] = "wnodf";
+inline constexpr char kSpectralRadius[] = "spectral_radius";
+inline constexpr char kConnectance[] = "connectance";
+inline constexpr char kBinarize[] = "binarize";
+inline constexpr char kOrderName[] = "order_name";
+// Comparison metrics are stored as "<prefix><metric>" (analysis/compare.hpp
+// names the metrics), e.g. "entropic_total_variation".
+inline constexpr char kExactPrefix[] = "exact_";
+inline constexpr char kEntropicPrefix[] = "entropic_";
+// A null comparison of a metric is stored as "<metric>_<field>", e.g.
+// "nodf_null_mean", "nodf_z_score".
+inline constexpr char kNullModel[] = "null_model";
+inline constexpr char kNullMean[] = "null_mean";
+inline constexpr char kNullSd[] = "null_sd";
+inline constexpr char kZScore[] = "z_score";
+inline constexpr char kPUpper[] = "p_upper";
+
+// Summary columns besides the experiment keys and the analysis attributes.
+inline constexpr char kRunColumn[] = "run";
+
+}  // namespace allocsim::layout
