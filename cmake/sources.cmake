@@ -60,6 +60,7 @@ allocsim_layer(experiments
     experiments/keys.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
+    experiments/replay.cpp
     experiments/sweep_runner.cpp
     experiments/trend.cpp
   LINKS allocsim::results Boost::program_options)

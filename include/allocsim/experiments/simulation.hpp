@@ -17,6 +17,7 @@ struct SimulationRequest {
   int threads = 1;                 // worker threads; results are identical for any count
   std::string tool_version = "";   // stored as the tool_version attribute
   ProgressCallback progress;       // may be empty
+  long run_index = 0;              // seeds the run's streams and names it (run_name); >= 0
 };
 
 struct SimulationReport {

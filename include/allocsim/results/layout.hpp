@@ -60,6 +60,16 @@ inline constexpr char kFeasible[] = "feasible";
 inline constexpr char kSeconds[] = "seconds";
 inline constexpr char kUnplacedUnits[] = "unplaced_units";
 inline constexpr char kUnitsAfterBurnIn[] = "units_after_burn_in";
+// Settling of the run (sim/settling.hpp): "true" | "false", and the measures
+// of its last windows; also /summary columns.
+inline constexpr char kSettled[] = "settled";
+inline constexpr char kCapacityError[] = "capacity_error";
+inline constexpr char kWindowChange[] = "window_change";
+inline constexpr char kDriftSinceBurnIn[] = "drift_since_burn_in";
+// Per snapshot window (k): capacity error and change from the window before
+// (NaN for the first).
+inline constexpr char kWindowCapacityErrors[] = "allocation/capacity_error";
+inline constexpr char kWindowChanges[] = "allocation/window_change";
 // Values of the status attribute.
 inline constexpr char kStatusRunning[] = "running";
 inline constexpr char kStatusComplete[] = "complete";
