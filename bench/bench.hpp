@@ -38,6 +38,7 @@ void exact_rows(const Settings& settings, Report& report);
 void entropic_rows(const Settings& settings, Report& report);
 void iteration_rows(const Settings& settings, const Bandwidth& bandwidth, Report& report);
 void simulation_rows(const Settings& settings, const Bandwidth& bandwidth, Report& report);
+void csv_rows(const Settings& settings, Report& report);
 
 // The child side of the memory rows (this program re-executed): plays a
 // simulation and exits; returns the exit code.

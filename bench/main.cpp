@@ -41,7 +41,7 @@ const char* kUsage =
     "usage: allocsim_bench [--quick] [--json] [--only GROUP,...]\n"
     "  --quick   smoke run: small sizes and short caps (about half a minute)\n"
     "  --json    print one JSON object instead of the table\n"
-    "  --only    comma-separated groups: exact, entropic, iteration, simulation (machine always)\n";
+    "  --only    comma-separated groups: exact, entropic, iteration, simulation, csv (machine always)\n";
 
 std::string self_path() {
   char buffer[4096];
@@ -126,6 +126,10 @@ int main(int argc, char** argv) {
       std::cerr << "allocsim_bench: simulation, sweeps, memory...\n";
       simulation_rows(settings, bandwidth, report);
     }
+    if (wanted("csv")) {
+      std::cerr << "allocsim_bench: CSV reading and writing, whole solve process...\n";
+      csv_rows(settings, report);
+    }
   } catch (const std::exception& e) {
     std::cerr << "allocsim_bench: " << e.what() << "\n";
     code = 1;
@@ -152,7 +156,8 @@ int main(int argc, char** argv) {
   report.note("numpy " + info.word("numpy") +
               " with OPENBLAS_NUM_THREADS=1 (OPENBLAS_CORETYPE, OPENBLAS_L2_SIZE unset for it); "
               "ratios are baseline time / our time, except 'vs bare LEMON' and the rows with a "
-              "bound (bound / our time) and the memory row (long / short)");
+              "bound (bound / our time), the memory row (long / short), the CSV speed rows (our speed / "
+              "target speed) and the whole-process row (process / solve alone)");
   std::cout << (json ? report.json() + "\n" : report.table());
   return code;
 }

@@ -5,6 +5,8 @@ allocsim_layer(core
   SOURCES
     core/atomic_file.cpp
     core/csv.cpp
+    core/csv_text.cpp
+    core/csv_write.cpp
     core/json.cpp
     core/memory_limit.cpp
     core/problem.cpp

@@ -9,6 +9,7 @@
 
 #include <exception>
 #include <fstream>
+#include <sstream>
 #include <string>
 
 #include "allocsim/core/csv.hpp"
@@ -22,33 +23,52 @@ inline bool starts_with(const std::string& text, const std::string& prefix) {
   return text.rfind(prefix, 0) == 0;
 }
 
-// The CSV reader on `bytes`: an InputError naming the file, or a non-empty
-// finite matrix whose labels match its shape and whose numbers survive a
-// write and read back unchanged.
-inline std::string csv_reader_finding(const std::string& bytes) {
-  if (split_csv_record(bytes).empty()) return "split_csv_record returned no field";
+// A matrix the CSV reader accepted: non-empty, finite, labels matching its
+// shape, and the same numbers and labels after a write and a read back.
+inline std::string csv_matrix_finding(const LabeledMatrix& m) {
+  if (m.values.rows() < 1 || m.values.cols() < 1) return "an empty matrix was accepted";
+  if (!m.row_labels.empty() && static_cast<long>(m.row_labels.size()) != m.values.rows())
+    return "row labels disagree with the rows";
+  if (!m.column_labels.empty() && static_cast<long>(m.column_labels.size()) != m.values.cols())
+    return "column labels disagree with the columns";
+  if (!m.values.allFinite()) return "a non-finite value was accepted";
+  std::ostringstream written;
+  write_matrix_csv(written, m.values, m.row_labels, m.column_labels);
   try {
-    const LabeledMatrix m = parse_matrix_csv(bytes, "fuzz.csv");
-    if (m.values.rows() < 1 || m.values.cols() < 1) return "an empty matrix was accepted";
-    if (!m.row_labels.empty() && static_cast<long>(m.row_labels.size()) != m.values.rows())
-      return "row labels disagree with the rows";
-    if (!m.column_labels.empty() &&
-        static_cast<long>(m.column_labels.size()) != m.values.cols())
-      return "column labels disagree with the columns";
-    if (!m.values.allFinite()) return "a non-finite value was accepted";
-    std::string written;
-    for (Eigen::Index i = 0; i < m.values.rows(); ++i) {
-      for (Eigen::Index j = 0; j < m.values.cols(); ++j) {
-        written += (j ? "," : "") + format_number(m.values(i, j));
-      }
-      written += "\n";
-    }
-    if (parse_matrix_csv(written, "again.csv").values != m.values)
-      return "numbers changed on a write and read back";
-  } catch (const InputError& e) {
-    if (!starts_with(e.what(), "fuzz.csv")) return std::string("an input error does not name the file: ") + e.what();
+    const LabeledMatrix again = parse_matrix_csv(written.str(), "again.csv");
+    if (again.values.rows() != m.values.rows() || again.values.cols() != m.values.cols() ||
+        again.values != m.values)
+      return "numbers changed on a write and read back:\n" + written.str();
+    if (again.row_labels != m.row_labels || again.column_labels != m.column_labels)
+      return "labels changed on a write and read back:\n" + written.str();
   } catch (const std::exception& e) {
-    return std::string("not an InputError: ") + e.what();
+    return std::string("the written matrix does not read back: ") + e.what() + "\n" + written.str();
+  }
+  return "";
+}
+
+// The CSV reader on `bytes` (missing cells refused, then read as 0): an
+// InputError naming the file, or a matrix that passes csv_matrix_finding.
+inline std::string csv_reader_finding(const std::string& bytes) {
+  try {
+    if (split_csv_record(bytes).empty()) return "split_csv_record returned no field";
+  } catch (const InputError& e) {
+    if (!starts_with(e.what(), "CSV record")) return std::string("split_csv_record: ") + e.what();
+  } catch (const std::exception& e) {
+    return std::string("split_csv_record: not an InputError: ") + e.what();
+  }
+  for (const bool missing_as_zero : {false, true}) {
+    CsvReadOptions options;
+    options.missing_as_zero = missing_as_zero;
+    try {
+      const std::string finding = csv_matrix_finding(parse_matrix_csv(bytes, "fuzz.csv", options));
+      if (!finding.empty()) return finding;
+    } catch (const InputError& e) {
+      if (!starts_with(e.what(), "fuzz.csv"))
+        return std::string("an input error does not name the file: ") + e.what();
+    } catch (const std::exception& e) {
+      return std::string("not an InputError: ") + e.what();
+    }
   }
   return "";
 }
@@ -67,7 +87,8 @@ inline std::string experiment_file_finding(const std::string& bytes, const std::
   try {
     read_experiment_file(path, values);
   } catch (const InputError& e) {
-    if (!starts_with(e.what(), path)) return std::string("an input error does not name the file: ") + e.what();
+    if (!starts_with(e.what(), path))
+      return std::string("an input error does not name the file: ") + e.what();
     return "";
   } catch (const std::exception& e) {
     return std::string("not an InputError: ") + e.what();
@@ -84,7 +105,8 @@ inline std::string experiment_file_finding(const std::string& bytes, const std::
   try {
     read_experiment_file(path, again);
   } catch (const std::exception& e) {
-    return std::string("the experiment's own INI text does not read back: ") + e.what() + "\n" + ini;
+    return std::string("the experiment's own INI text does not read back: ") + e.what() + "\n" +
+           ini;
   }
   if (again.to_ini() != ini) return "the experiment's INI text changes on a read back:\n" + ini;
   return "";
