@@ -133,8 +133,8 @@ void print_short(const ResultsReader& reader) {
   if (settled.count("false") || settled.count("true")) {
     std::cout << "; settled: " << settled["true"] << " of " << names.size();
   }
-  std::cout << "\n               ";
-      long same = 0;
+  std::cout << "\n";
+  long same = 0;
   std::vector<std::string> varying;
   for (const auto& key : order) {
     // Per-run identities and timings always differ; they are not parameters.
