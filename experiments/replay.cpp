@@ -104,7 +104,8 @@ RunToPlay point_of_sweep(const std::string& path,
           throw InputError(path, std::string(matches.empty() ? "no point" : "several points") +
                                      " of the sweep match; give --" + axis.key + " (one of " +
                                      axis_values(axis) + ") or --point K (0 to " +
-                                     std::to_string(count - 1) + ")");
+                                     std::to_string(count - 1) +
+                                     "), or play every point with 'allocsim run " + path + "'");
         }
       }
       throw InputError(path, "no point of the sweep matches; --replicate is 0 to " +

@@ -45,7 +45,12 @@ void write_settling(RunWriter& group, const RunResult& result) {
         Eigen::Map<const Vector>(values.data(), static_cast<Eigen::Index>(values.size())));
   };
   group.write_vector(layout::kWindowCapacityErrors, as_vector(result.trace.capacity_errors));
-  group.write_vector(layout::kWindowChanges, as_vector(result.trace.changes));
+  // Changes between consecutive windows: k - 1 values (the first window has none before it).
+  const std::vector<double>& changes = result.trace.changes;
+  group.write_vector(layout::kWindowChanges,
+                     as_vector(changes.size() > 1
+                                   ? std::vector<double>(changes.begin() + 1, changes.end())
+                                   : std::vector<double>()));
 }
 
 }  // namespace

@@ -66,8 +66,8 @@ inline constexpr char kSettled[] = "settled";
 inline constexpr char kCapacityError[] = "capacity_error";
 inline constexpr char kWindowChange[] = "window_change";
 inline constexpr char kDriftSinceBurnIn[] = "drift_since_burn_in";
-// Per snapshot window (k): capacity error and change from the window before
-// (NaN for the first).
+// Per snapshot window: capacity error (k values) and change from the window
+// before (k - 1 values, windows 2..k).
 inline constexpr char kWindowCapacityErrors[] = "allocation/capacity_error";
 inline constexpr char kWindowChanges[] = "allocation/window_change";
 // Values of the status attribute.
