@@ -25,6 +25,7 @@ int simulate_command(const Arguments& args);
 int inspect_command(const Arguments& args);
 int analyze_command(const Arguments& args);
 int plot_command(const Arguments& args);
+int trend_command(const Arguments& args);
 
 // Every subcommand, in the order `allocsim --help` lists them.
 const std::vector<Command>& all_commands();

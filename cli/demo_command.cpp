@@ -14,6 +14,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
 #include "allocsim/results/results_file.hpp"
+#include "allocsim/experiments/trend.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
 #include "options.hpp"
@@ -102,14 +103,20 @@ void tell_findings(std::ostream& out, const std::string& results) {
                   c["nodf_null_sd"].values[k], c["nodf_z_score"].values[k]);
     out << line;
   }
-  const auto& z = c["nodf_z_score"].values;
-  const long above = std::count_if(z.begin(), z.end(), [](double v) { return v > 2; });
-  const long below = std::count_if(z.begin(), z.end(), [](double v) { return v < -2; });
+  // The closing answer is what `allocsim trend` says of the same summary.
+  TrendOptions trend_options;
+  const TrendResult trend =
+      measure_trend(T, c["nodf_z_score"].values, c["nodf_z_score"].values, trend_options);
   out << "Nestedness (links where a market takes more of a boat's catch than its share overall): "
       << "NODF went from " << number(c["nodf"].values.front()) << " at T = " << number(T.front())
-      << " to " << number(c["nodf"].values.back()) << " at T = " << number(T.back()) << "; "
-      << above << " runs were more nested and " << below << " less nested than their curveball "
-      << "nulls (|z| > 2), which keep every boat's and market's number of links.\n";
+      << " to " << number(c["nodf"].values.back()) << " at T = " << number(T.back())
+      << "; against curveball nulls, which keep every boat's and market's number of links "
+      << "(allocsim trend " << results << "): "
+      << describe_trend(trend,
+                        {"", "NODF's z-score", "temperature",
+                         "more nested than their curveball null", "less nested"},
+                        trend_options)
+      << "\n";
   out << "Distance (total variation) to the entropic coupling at the fitted epsilon: at most "
       << number(*std::max_element(c["entropic_total_variation"].values.begin(),
                                   c["entropic_total_variation"].values.end()),

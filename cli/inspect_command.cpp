@@ -1,5 +1,7 @@
 // allocsim inspect: what a results file holds (runs, parameters, datasets).
+#include <algorithm>
 #include <iostream>
+#include <map>
 #include <sstream>
 #include <variant>
 
@@ -94,6 +96,77 @@ void print_listing(const ResultsReader& reader, bool show_experiment) {
   }
 }
 
+// At most this many values of a varying parameter are listed in the short view.
+constexpr std::size_t kValuesShown = 8;
+
+std::string joined(const std::vector<std::string>& values, std::size_t most) {
+  std::string text;
+  for (std::size_t k = 0; k < values.size() && k < most; ++k) text += (k ? ", " : "") + values[k];
+  if (values.size() > most) text += ", ... (" + std::to_string(values.size()) + " values)";
+  return text;
+}
+
+// The short view: runs and their status, the parameters that vary across
+// runs (with their values), how many are the same, and the summary columns.
+void print_short(const ResultsReader& reader) {
+  const Attributes root = reader.root_attributes();
+  const auto names = reader.runs();
+  std::cout << reader.path() << ": " << names.size() << (names.size() == 1 ? " run" : " runs")
+            << ", written by allocsim " << attribute_text(root, layout::kToolVersion) << " at "
+            << attribute_text(root, layout::kCreatedUtc) << "\n";
+  std::map<std::string, std::vector<std::string>> values;  // distinct values in run order
+  std::vector<std::string> order;
+  std::map<std::string, long> status, settled;
+  for (const auto& name : names) {
+    const Attributes attributes = reader.run_attributes(name);
+    ++status[attribute_text(attributes, layout::kStatus)];
+    ++settled[attribute_text(attributes, layout::kSettled)];
+    for (const auto& [key, value] : attributes) {
+      if (!values.count(key)) order.push_back(key);
+      auto& seen = values[key];
+      const std::string text = text_of(value);
+      if (std::find(seen.begin(), seen.end(), text) == seen.end()) seen.push_back(text);
+    }
+  }
+  std::cout << "status:";
+  for (const auto& [word, count] : status) std::cout << " " << count << " " << word;
+  if (settled.count("false") || settled.count("true")) {
+    std::cout << "; settled: " << settled["true"] << " of " << names.size();
+  }
+  std::cout << "\n";
+  long same = 0;
+  std::vector<std::string> varying;
+  for (const auto& key : order) {
+    // Per-run identities and timings always differ; they are not parameters.
+    if (key == layout::kRunIndex || key == layout::kSeconds || key == layout::kCapacityError ||
+        key == layout::kWindowChange || key == layout::kDriftSinceBurnIn) {
+      continue;
+    }
+    if (values[key].size() > 1)
+      varying.push_back(key);
+    else
+      ++same;
+  }
+  std::cout << "parameters that vary:" << (varying.empty() ? " none" : "") << "\n";
+  for (const auto& key : varying) {
+    std::cout << "  " << key << ": " << joined(values[key], kValuesShown) << "\n";
+  }
+  std::cout << same << " more parameters take one value in every run (--all lists every run)\n";
+  const std::vector<DatasetInfo> columns = reader.summary_columns();
+  if (!columns.empty()) {
+    std::vector<std::string> column_names;
+    for (const auto& c : columns) column_names.push_back(c.path);
+    std::cout << "summary columns (" << columns.size()
+              << "): " << joined(column_names, columns.size()) << "\n";
+  }
+  if (!names.empty()) {
+    std::cout << "datasets of " << names.front() << ":";
+    for (const auto& d : reader.datasets(names.front()))
+      std::cout << " " << d.path << " (" << shape_text(d.shape) << ")";
+    std::cout << "\n";
+  }
+}
+
 void print_json(const ResultsReader& reader) {
   const Attributes root = reader.root_attributes();
   JsonObject json;
@@ -124,19 +197,31 @@ void print_json(const ResultsReader& reader) {
 int inspect_command(const Arguments& args) {
   po::options_description options("inspect options");
   options.add_options()("file", po::value<std::string>()->required(), "results file (HDF5)")(
+      "all", "list every run with every parameter and dataset (default: a short view)")(
       "experiment", "also print the experiment text")("json", "print one JSON object on stdout");
   po::positional_options_description positional;
   positional.add("file", 1);
   po::variables_map vm;
-  if (!parse_or_help(args, options, positional, vm, "inspect", "FILE.h5 [--json] [--experiment]")) {
+  if (!parse_or_help(
+          args, options, positional, vm, "inspect",
+          "FILE.h5 [--all] [--json] [--experiment]\n\n"
+          "A short view by default: runs, the parameters that vary, the summary columns. "
+          "--all lists every run's parameters and datasets.")) {
     return kExitOk;
   }
   const std::string path = vm["file"].as<std::string>();
   const ResultsReader reader(path);
   if (vm.count("json"))
     print_json(reader);
-  else
+  else if (vm.count("all"))
     print_listing(reader, vm.count("experiment") > 0);
+  else {
+    print_short(reader);
+    if (vm.count("experiment")) {
+      std::cout << "\nexperiment:\n"
+                << attribute_text(reader.root_attributes(), layout::kExperiment) << "\n";
+    }
+  }
   return kExitOk;
 }
 

@@ -18,6 +18,9 @@ void print_overview() {
     std::cout << "  " << command.name << std::string(10 - std::string(command.name).size(), ' ')
               << command.summary << "\n";
   }
+  std::cout
+      << "\nWhat the rules, scenarios, null models and epsilon mean: docs/guide.md (the modelling\n"
+         "guide); every experiment key: docs/experiment-keys.md.\n";
 }
 
 }  // namespace

@@ -18,6 +18,7 @@
 #include "allocsim/experiments/keys.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
 #include "allocsim/results/results_file.hpp"
+#include "allocsim/results/layout.hpp"
 #include "commands.hpp"
 #include "mpi_sweep.hpp"
 #include "options.hpp"
@@ -149,6 +150,28 @@ int exit_code(const SweepReport& report) {
   return kExitProblem;
 }
 
+// One warning line for the runs whose settled column is "false" (sim/settling.hpp).
+void warn_unsettled(const SummaryTable& summary) {
+  const std::vector<std::string>* settled = nullptr;
+  const std::vector<std::string>* runs = nullptr;
+  for (const auto& [name, column] : summary.texts) {
+    if (name == layout::kSettled) settled = &column;
+    if (name == layout::kRunColumn) runs = &column;
+  }
+  if (!settled || !runs) return;
+  std::vector<std::string> unsettled;
+  for (std::size_t k = 0; k < settled->size(); ++k) {
+    if ((*settled)[k] == "false") unsettled.push_back((*runs)[k]);
+  }
+  if (unsettled.empty()) return;
+  std::cerr << "allocsim run: warning: " << unsettled.size() << " of " << settled->size()
+            << " runs did not settle (first: " << unsettled.front()
+            << "; /summary column settled): their allocation after burn-in is not the stationary "
+               "one; play more rounds with a longer burn-in (dynamics.rounds, dynamics.burn_in), "
+               "a larger dynamics.price_step at low temperature, or a smaller dynamics.window; "
+               "see docs/guide.md\n";
+}
+
 }  // namespace
 
 int run_command(const Arguments& args) {
@@ -214,6 +237,7 @@ int run_command(const Arguments& args) {
 
   if (report.complete && vm.count("csv"))
     write_summary_csv(vm["csv"].as<std::string>(), report.summary);
+  if (report.complete) warn_unsettled(report.summary);
   if (vm.count("json")) {
     JsonObject json = report_json(report);
     std::cout << json.str() << "\n";

@@ -47,6 +47,7 @@ allocsim_layer(sim
     sim/queue_rule.cpp
     sim/rules.cpp
     sim/scenario.cpp
+    sim/settling.cpp
   LINKS allocsim::core)
 
 # The results file: the one layer that knows HDF5 and the file layout.
@@ -73,7 +74,9 @@ allocsim_layer(experiments
     experiments/score_file.cpp
     experiments/simulation.cpp
     experiments/sweep.cpp
+    experiments/replay.cpp
     experiments/sweep_runner.cpp
+    experiments/trend.cpp
   LINKS allocsim::results Boost::program_options)
 
 allocsim_layer(plots
@@ -105,7 +108,8 @@ add_executable(allocsim
   cli/options.cpp
   cli/run_command.cpp
   cli/simulate_command.cpp
-  cli/solve_command.cpp)
+  cli/solve_command.cpp
+  cli/trend_command.cpp)
 target_compile_definitions(allocsim PRIVATE ALLOCSIM_VERSION="${PROJECT_VERSION}")
 target_include_directories(allocsim PRIVATE ${PROJECT_SOURCE_DIR}/cli)
 target_link_libraries(allocsim PRIVATE allocsim::experiments allocsim::analysis allocsim::plots Boost::program_options)

@@ -20,8 +20,8 @@
 namespace allocsim {
 namespace {
 
-SummaryTable one_row_summary(const std::string& run, const ExperimentValues& values,
-                             const RunResult& result) {
+SummaryTable one_row_summary(const std::string& run, std::uint64_t run_index,
+                             const ExperimentValues& values, const RunResult& result) {
   SummaryTable table;
   table.texts.push_back({layout::kRunColumn, {run}});
   for (const auto& key : experiment_keys()) {
@@ -33,7 +33,32 @@ SummaryTable one_row_summary(const std::string& run, const ExperimentValues& val
   }
   table.numbers.push_back({layout::kUnitsAfterBurnIn, {result.total.sum()}});
   table.numbers.push_back({layout::kUnplacedUnits, {static_cast<double>(result.unplaced_units)}});
+  table.numbers.push_back({layout::kRunIndex, {static_cast<double>(run_index)}});
+  table.texts.push_back({layout::kSettled, {result.settling.settled ? "true" : "false"}});
+  table.numbers.push_back({layout::kCapacityError, {result.settling.capacity_error}});
+  table.numbers.push_back({layout::kWindowChange, {result.settling.change}});
+  table.numbers.push_back({layout::kDriftSinceBurnIn, {result.settling.drift}});
   return table;
+}
+
+// Whether the run settled, its last windows' measures, and every window's.
+void write_settling(RunWriter& group, const RunResult& result) {
+  const Settling& s = result.settling;
+  group.set_text(layout::kSettled, s.settled ? "true" : "false");
+  group.set_number(layout::kCapacityError, s.capacity_error);
+  group.set_number(layout::kWindowChange, s.change);
+  group.set_number(layout::kDriftSinceBurnIn, s.drift);
+  const auto as_vector = [](const std::vector<double>& values) {
+    return Vector(
+        Eigen::Map<const Vector>(values.data(), static_cast<Eigen::Index>(values.size())));
+  };
+  group.write_vector(layout::kWindowCapacityErrors, as_vector(result.trace.capacity_errors));
+  // Changes between consecutive windows: k - 1 values (the first window has none before it).
+  const std::vector<double>& changes = result.trace.changes;
+  group.write_vector(layout::kWindowChanges,
+                     as_vector(changes.size() > 1
+                                   ? std::vector<double>(changes.begin() + 1, changes.end())
+                                   : std::vector<double>()));
 }
 
 }  // namespace
@@ -82,6 +107,7 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
   const RunResult result = run_dynamics(problem, settings.dynamics, settings.scenario.seed,
                                         run_index, &recorder, progress);
   recorder.finish(result);
+  write_settling(group, result);
   if (values.boolean("analysis.enabled")) {
     const AllocationInput input{
         result.total,
@@ -135,11 +161,12 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
   require_distinct(settings.output_file, where, inputs);
   // Build the scenario once before creating the file, so bad input (files,
   // shapes, access) fails without leaving anything behind.
-  const TransportProblem check = make_scenario(settings.scenario, 0);
+  const auto run_index = static_cast<std::uint64_t>(request.run_index);
+  const TransportProblem check = make_scenario(settings.scenario, run_index);
 
   SimulationReport report;
   report.output_file = settings.output_file;
-  report.run = run_name(0);
+  report.run = run_name(request.run_index);
   report.agents = check.agents();
   report.partners = check.partners();
   report.infeasibility = explain_infeasibility(check);
@@ -149,8 +176,8 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
   try {
     errno = 0;
     ResultsFile file(output.path, values.to_ini(), request.tool_version);
-    report.result = record_run(file, report.run, 0, values, settings, request.progress);
-    file.write_summary(one_row_summary(report.run, values, report.result));
+    report.result = record_run(file, report.run, run_index, values, settings, request.progress);
+    file.write_summary(one_row_summary(report.run, run_index, values, report.result));
     file.commit();
   } catch (const std::exception&) {
     throw;

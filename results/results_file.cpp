@@ -103,12 +103,24 @@ void RunWriter::write_matrix(const std::string& path, const Matrix& values) {
   });
 }
 
+void RunWriter::write_vector(const std::string& path, const Vector& values) {
+  return write_guarded(group_->path, [&]() -> void {
+    const std::size_t slash = path.rfind('/');
+    H5::Group parent = slash == std::string::npos
+                           ? group_->group
+                           : open_or_create_groups(group_->group, path.substr(0, slash));
+    const std::string name = slash == std::string::npos ? path : path.substr(slash + 1);
+    if (parent.nameExists(name)) parent.unlink(name);
+    allocsim::write_vector(parent, name, values);
+  });
+}
+
 void RunWriter::write_scenario(const TransportProblem& problem) {
   return write_guarded(group_->path, [&]() -> void {
     H5::Group scenario = open_or_create_groups(group_->group, layout::kScenario);
     allocsim::write_matrix(scenario, leaf_name(layout::kGains), problem.gains);
-    write_vector(scenario, leaf_name(layout::kBudgets), problem.budgets);
-    write_vector(scenario, leaf_name(layout::kCapacities), problem.capacities);
+    allocsim::write_vector(scenario, leaf_name(layout::kBudgets), problem.budgets);
+    allocsim::write_vector(scenario, leaf_name(layout::kCapacities), problem.capacities);
     if (problem.access) write_access(scenario, leaf_name(layout::kAccess), *problem.access);
   });
 }

@@ -88,9 +88,13 @@ void add_summary_row(SummaryBuilder& summary, long row, const std::string& run,
       summary.text(key, row, attribute_text(attributes, key));
     }
   }
-  for (const char* key : {layout::kSeed, layout::kReplicate}) {
+  for (const char* key : {layout::kSeed, layout::kRunIndex, layout::kReplicate,
+                          layout::kCapacityError, layout::kWindowChange,
+                          layout::kDriftSinceBurnIn}) {
     if (const auto number = attribute_number(attributes, key)) summary.number(key, row, *number);
   }
+  const std::string settled = attribute_text(attributes, layout::kSettled);
+  if (!settled.empty()) summary.text(layout::kSettled, row, settled);
   for (const auto& [name, value] : part.group_attributes(run, layout::kAnalysis)) {
     if (const auto* d = std::get_if<double>(&value)) summary.number(name, row, *d);
     if (const auto* i = std::get_if<long long>(&value))

@@ -28,6 +28,7 @@ enum class StreamId : std::uint64_t {
   dynamics = 5,
   design =
       6,  // benchmark sets: what each case draws (temperature, units, shape, laws) and their order
+  trend = 7,  // permutations and bootstrap draws of experiments/trend.hpp
 };
 
 // One step of splitmix64: advances `state` and returns the mixed output.

@@ -22,6 +22,7 @@ struct SimulationRequest {
   // Files read besides the data files of the values, (label, path): the
   // output may not be one of them (e.g. {"--config", "exp.ini"}).
   std::vector<std::pair<std::string, std::string>> inputs;
+  long run_index = 0;  // seeds the run's streams and names it (run_name); >= 0
 };
 
 struct SimulationReport {

@@ -71,6 +71,16 @@ inline constexpr char kUnitsAfterBurnIn[] = "units_after_burn_in";
 inline constexpr char kObservedAllocation[] = "observed_allocation";
 inline constexpr char kObservedGains[] = "observed_gains";
 inline constexpr char kObservedAccess[] = "observed_access";
+// Settling of the run (sim/settling.hpp): "true" | "false", and the measures
+// of its last windows; also /summary columns.
+inline constexpr char kSettled[] = "settled";
+inline constexpr char kCapacityError[] = "capacity_error";
+inline constexpr char kWindowChange[] = "window_change";
+inline constexpr char kDriftSinceBurnIn[] = "drift_since_burn_in";
+// Per snapshot window: capacity error (k values) and change from the window
+// before (k - 1 values, windows 2..k).
+inline constexpr char kWindowCapacityErrors[] = "allocation/capacity_error";
+inline constexpr char kWindowChanges[] = "allocation/window_change";
 // Values of the status attribute.
 inline constexpr char kStatusRunning[] = "running";
 inline constexpr char kStatusComplete[] = "complete";

@@ -49,6 +49,8 @@ class RunWriter {
                     const std::vector<std::string>& partners);
   // A numeric matrix at a path of layout.hpp, e.g. layout::kTotal (parents created).
   void write_matrix(const std::string& path, const Matrix& values);
+  // A numeric vector (1-D dataset) at a path of layout.hpp (parents created).
+  void write_vector(const std::string& path, const Vector& values);
   // Replaces <run>/analysis with the report: scalar metrics as attributes
   // (these become /summary columns in a sweep), the exact and entropic
   // couplings and the display order as datasets.

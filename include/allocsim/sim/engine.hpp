@@ -7,7 +7,8 @@
 // turns them into flows, and the flows are added to
 //   * the current window (rounds (k-1)*window+1 .. k*window), handed to the
 //     sink as snapshot k when the window closes (the last window may be
-//     shorter), together with the prices at that moment;
+//     shorter), together with the prices at that moment, and measured for
+//     settling (settling.hpp: capacity error, change from the window before);
 //   * the cumulative allocation of the rounds after burn_in.
 // Memory is O(n*m) whatever the number of rounds.
 #pragma once
@@ -19,6 +20,7 @@
 #include "allocsim/core/matrix.hpp"
 #include "allocsim/core/problem.hpp"
 #include "allocsim/sim/rules.hpp"
+#include "allocsim/sim/settling.hpp"
 
 namespace allocsim {
 
@@ -39,6 +41,8 @@ struct RunResult {
   long snapshots = 0;
   long unplaced_units = 0;  // over all rounds (queue)
   double seconds = 0;       // wall time of the rounds
+  SettlingTrace trace;      // capacity error and change of every window (settling.hpp)
+  Settling settling;        // whether the last two windows settled
 
   // One line for the command line.
   std::string brief() const;
