@@ -14,7 +14,9 @@ const std::vector<Command>& all_commands() {
       {"synth", "writes benchmark sets of allocations with known temperature", synth_command},
       {"score", "scores an estimator's answers against a benchmark set's truth", score_command},
       {"plot", "draws the figures of a results file", plot_command},
-      {"trend", "per level of a factor, whether a metric rises with a swept key, in numbers and words", trend_command},
+      {"trend",
+       "per level of a factor, whether a metric rises with a swept key, in numbers and words",
+       trend_command},
   };
   return commands;
 }

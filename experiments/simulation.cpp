@@ -55,9 +55,9 @@ void write_settling(RunWriter& group, const RunResult& result) {
   group.write_vector(layout::kWindowCapacityErrors, as_vector(result.trace.capacity_errors));
   // Changes between consecutive windows: k - 1 values (the first window has none before it).
   const std::vector<double>& changes = result.trace.changes;
-  group.write_vector(layout::kWindowChanges,
-                     as_vector(changes.size() > 1
-                                   ? std::vector<double>(changes.begin() + 1, changes.end())
+  group.write_vector(
+      layout::kWindowChanges,
+      as_vector(changes.size() > 1 ? std::vector<double>(changes.begin() + 1, changes.end())
                                    : std::vector<double>()));
 }
 

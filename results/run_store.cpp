@@ -88,9 +88,9 @@ void add_summary_row(SummaryBuilder& summary, long row, const std::string& run,
       summary.text(key, row, attribute_text(attributes, key));
     }
   }
-  for (const char* key : {layout::kSeed, layout::kRunIndex, layout::kReplicate,
-                          layout::kCapacityError, layout::kWindowChange,
-                          layout::kDriftSinceBurnIn}) {
+  for (const char* key :
+       {layout::kSeed, layout::kRunIndex, layout::kReplicate, layout::kCapacityError,
+        layout::kWindowChange, layout::kDriftSinceBurnIn}) {
     if (const auto number = attribute_number(attributes, key)) summary.number(key, row, *number);
   }
   const std::string settled = attribute_text(attributes, layout::kSettled);
