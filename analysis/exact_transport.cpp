@@ -19,6 +19,10 @@
 namespace allocsim {
 namespace {
 
+// Gains above this in absolute value are divided by the largest one before
+// they become costs (so that gains of +-1e308 cannot overflow).
+constexpr double kScaleAbove = 1e100;
+
 using Clock = std::chrono::steady_clock;
 using Graph = lemon::SmartDigraph;
 using Units = std::int64_t;
@@ -292,7 +296,9 @@ class TransportNetwork {
         scale_ = std::max(scale_, std::abs(gain));
       }
     }
-    if (!(scale_ > 0)) scale_ = 1;
+    // Scaled only where the costs could overflow: unscaled whole-number gains
+    // keep whole-number costs, on which the simplex does not stall on ties.
+    if (!(scale_ > kScaleAbove)) scale_ = 1;
     Graph::ArcMap<double> cost(graph_);
     for (int i = 0, a = 0; i < n_; ++i) {
       for (int k = cells_.row_start[i]; k < cells_.row_start[i + 1]; ++k, ++a) {

@@ -193,6 +193,10 @@ struct Interval {
   std::string message;
 };
 
+// How far above the estimate (in log beta) the interval's upper end is
+// looked for before epsilon 0 counts as inside the set.
+constexpr double kFarLogBeta = 40;
+
 // Likelihood-ratio interval in beta around the estimate `best`.
 Interval likelihood_interval(const ObservedAllocation& o, const TemperatureOptions& options,
                              const ProfilePoint& best, double independent_loglik,
@@ -214,11 +218,16 @@ Interval likelihood_interval(const ObservedAllocation& o, const TemperatureOptio
   const double upper_start = std::log(best.beta + z * se_beta);
   const RootOutcome high =
       find_root(drop, upper_start, best.u, kInf, true, options.beta_tolerance * 10, profile);
-  if (!high.ok) {
+  if (high.ok) {
+    interval.beta_high = std::exp(high.u);
+  } else if (const RootValue far = drop(best.u + kFarLogBeta); far.ok && far.value < 0) {
+    // The likelihood never falls by the target towards beta = infinity (the
+    // counts sit on the exact optimum's support): epsilon 0 is inside the set.
+    interval.beta_high = kInf;
+  } else {
     interval.message = "the upper end of the interval in beta was not found";
     return interval;
   }
-  interval.beta_high = std::exp(high.u);
   if (best.loglik - independent_loglik - target <= 0) {
     interval.beta_low = 0;  // the independent coupling is inside: epsilon unbounded above
   } else {

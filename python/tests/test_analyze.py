@@ -21,6 +21,8 @@ def test_analyze_equals_the_command_line(cli, tmp_path):
     ours = allocsim.analyze(counts, gains)
     theirs = cli_analyze(cli, tmp_path, counts, gains)
     assert ours.pop("allocation") == "allocation" and theirs.pop("allocation").endswith("p.csv")
+    # How files were matched (by label or position) exists for files only.
+    assert ours.pop("matching") == [] and theirs.pop("matching")
     assert ours == theirs
 
 
@@ -31,7 +33,8 @@ def test_analyze_with_nulls_equals_the_command_line(cli, tmp_path, model):
                             binarize="min-count", threshold=2)
     theirs = cli_analyze(cli, tmp_path, counts, gains, "--nulls", model, "--null-samples", 30,
                          "--null-seed", 5, "--binarize", "min-count", "--threshold", 2)
-    ours.pop("allocation"), theirs.pop("allocation")
+    for key in ("allocation", "matching"):  # file names and how files were matched
+        ours.pop(key), theirs.pop(key)
     assert ours == theirs
     assert ours["structure"]["nodf_null"]["model"] == model
 

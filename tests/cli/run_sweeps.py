@@ -133,7 +133,8 @@ def check_interrupt(binary, folder):
     if process.returncode == 0:
         print("interrupt: the sweep finished before Ctrl-C arrived")
         return
-    check(process.returncode == 1, f"Ctrl-C: exit {process.returncode}")
+    # Exit 130 = 128 + SIGINT (README, "Exit codes").
+    check(process.returncode == 130, f"Ctrl-C: exit {process.returncode}")
     check("run the same command again" in err, f"Ctrl-C message: {err}")
     check(not os.path.exists(os.path.join(folder, "stop.h5")), "Ctrl-C left a results file")
     result = run(binary, folder, exp, "--quiet", "--json")
@@ -180,7 +181,9 @@ def check_bad_files(binary, folder):
         check(result.returncode == 2 and len(lines) == 1 and not missing,
               f"{name}: exit {result.returncode}, stderr {result.stderr.strip()!r}, missing {missing}")
         check(not os.path.exists(os.path.join(folder, "bad.h5")), f"{name}: left a results file")
-    changed = write_experiment(folder, "changed.ini", "one.h5", extra="# changed\n")
+    # A comment does not change the experiment (its identity is the effective
+    # experiment); a different number of rounds does.
+    changed = write_experiment(folder, "changed.ini", "one.h5", rounds=201)
     result = run(binary, folder, changed)
     check(result.returncode == 2 and "--restart" in result.stderr, "a changed experiment is refused")
     simulate = subprocess.run([binary, "simulate", "--config", os.path.join(folder, "one.h5.ini")],

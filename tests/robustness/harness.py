@@ -28,6 +28,23 @@ import numpy as np
 
 CASES = []  # (group, title, function)
 
+# Defects found by this suite and not fixed yet, each named in the closing
+# note of its issue. Such a case still runs: its failure is printed as OPEN
+# (not counted), and it is printed as FIXED when it passes, so that it is
+# taken off this list.
+KNOWN_OPEN = {
+    "synth: a set whose allocations cannot fit in memory is refused with the estimate",
+    "score --out a character device writes through; the device stays",
+    "score --out the answers file is refused",
+    "score --out the truth file is refused",
+    "simulate on a full disk: one line naming file and cause, exit 1, nothing left",
+    "simulate on a full disk leaves an earlier file unchanged",
+    "run whose parts do not fit: exit 1, the finished parts kept and readable",
+    "analyze --write on a full disk: exit 1, the results file unchanged",
+    "a finished file and a longer axis: refused, file unchanged",
+    "--sweep.KEY with an unknown key names the nearest one",
+}
+
 
 def case(group, title):
     def register(function):
@@ -424,7 +441,7 @@ def main(modules):
         print(f"{len(selected)} cases")
         return 0
     root = tempfile.mkdtemp(prefix="allocsim-robustness-")
-    failed, skipped = [], []
+    failed, skipped, opened = [], [], []
     started = time.time()
     for group, title, function in selected:
         ctx = Ctx(args, title, root)
@@ -438,19 +455,26 @@ def main(modules):
             continue
         except Exception:  # noqa: BLE001
             ctx.failures.append("exception: " + traceback.format_exc().strip().splitlines()[-1])
-        if ctx.failures:
+        if ctx.failures and title in KNOWN_OPEN:
+            opened.append(title)
+            print(f"OPEN {group}: {title} ({time.time() - t0:.1f} s)")
+            for message in ctx.failures:
+                print(f"     {message}")
+        elif ctx.failures:
             failed.append(title)
             print(f"FAIL {group}: {title} ({time.time() - t0:.1f} s)")
             for message in ctx.failures:
                 print(f"     {message}")
             if args.keep:
                 print(f"     kept {ctx.dir}")
+        elif title in KNOWN_OPEN:
+            print(f"FIXED {group}: {title}: take it off KNOWN_OPEN ({time.time() - t0:.1f} s)")
         else:
             print(f"ok   {group}: {title} ({time.time() - t0:.1f} s)")
         if not (args.keep and ctx.failures):
             ctx.cleanup()
     shutil.rmtree(root, ignore_errors=True)
     ran = len(selected) - len(skipped)
-    print(f"\n{ran} cases run, {len(failed)} failed, {len(skipped)} skipped, "
-          f"{time.time() - started:.1f} s")
+    print(f"\n{ran} cases run, {len(failed)} failed, {len(opened)} known open defects, "
+          f"{len(skipped)} skipped, {time.time() - started:.1f} s")
     return 1 if failed else 0
