@@ -354,6 +354,9 @@ bool finished_already(const SweepPlan& plan, bool restart, SummaryTable& summary
                                            "output.file");
   }
   summary = summary_of(*reader);
+  // A kill between the merge's rename and the removal of the parts leaves
+  // them behind; the finished file holds every run, so they go now.
+  remove_run_store_files(RunStore(plan.output_file).folder());
   return true;
 }
 
