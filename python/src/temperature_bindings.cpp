@@ -129,11 +129,7 @@ py::object analyze_binding(const py::object& allocation, const py::object& gains
   const Options options("analyze", kwargs);
   AllocationInput input;
   input.allocation = matrix_argument(allocation, "allocation");
-  if (gains.is_none())
-    value_error("gains",
-                "is required by this version of the analysis (structure alone: use "
-                "nodf, wnodf, connectance, spectral_radius)");
-  input.gains = matrix_argument(gains, "gains");
+  if (!gains.is_none()) input.gains = matrix_argument(gains, "gains");  // none: structure only
   input.access = access_argument(access, "access");
   AllocationAnalysisOptions analysis;
   options.read("confidence", analysis.temperature.confidence);

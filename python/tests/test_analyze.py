@@ -26,6 +26,16 @@ def test_analyze_equals_the_command_line(cli, tmp_path):
     assert ours == theirs
 
 
+def test_analyze_without_gains_equals_the_command_line(cli, tmp_path):
+    counts, _ = counts_case(13)
+    ours = allocsim.analyze(counts)
+    theirs = cli.json("analyze", "--allocation", write_csv(tmp_path / "p.csv", counts))
+    for key in ("allocation", "matching"):
+        ours.pop(key), theirs.pop(key)
+    assert ours["temperature"]["status"] == "no_gains"
+    assert ours == theirs
+
+
 @pytest.mark.parametrize("model", ["curveball", "bicm", "fixed-margins"])
 def test_analyze_with_nulls_equals_the_command_line(cli, tmp_path, model):
     counts, gains = counts_case(12, 7, 9, units=400, eps_share=0.3)
