@@ -36,11 +36,21 @@ void close_and_rename(H5::H5File& file, const std::string& temporary, const std:
   }
 }
 
-void close_quietly(H5::H5File& file) {
+// Closes an uncommitted file and removes its temporary name.
+void discard(H5::H5File& file, const std::string& temporary) {
   try {
     file.close();
   } catch (const H5::Exception&) {
   }
+  std::remove(temporary.c_str());
+}
+
+// The writer of /runs/<name>, which exists in `file`.
+RunWriter existing_run(H5::H5File& file, const std::string& name, const std::string& path) {
+  return write_guarded(path, [&]() -> RunWriter {
+    return RunWriter(std::make_shared<RunWriter::Group>(
+        RunWriter::Group{file.openGroup(runs_path(name)), path}));
+  });
 }
 
 }  // namespace
@@ -161,9 +171,7 @@ ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
 }
 
 ResultsFile::~ResultsFile() {
-  if (committed_) return;
-  close_quietly(file_->file);
-  std::remove(temporary_.c_str());
+  if (!committed_) discard(file_->file, temporary_);
 }
 
 RunWriter ResultsFile::create_run(const std::string& name) {
@@ -174,10 +182,7 @@ RunWriter ResultsFile::create_run(const std::string& name) {
 }
 
 RunWriter ResultsFile::run(const std::string& name) {
-  return write_guarded(path_, [&]() -> RunWriter {
-    return RunWriter(std::make_shared<RunWriter::Group>(
-        RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
-  });
+  return existing_run(file_->file, name, path_);
 }
 
 void ResultsFile::copy_run_from(const std::string& other_path, const std::string& run) {
@@ -239,16 +244,11 @@ ResultsUpdate::ResultsUpdate(std::string path)
 }
 
 ResultsUpdate::~ResultsUpdate() {
-  if (committed_) return;
-  close_quietly(file_->file);
-  std::remove(temporary_.c_str());
+  if (!committed_) discard(file_->file, temporary_);
 }
 
 RunWriter ResultsUpdate::run(const std::string& name) {
-  return write_guarded(path_, [&]() -> RunWriter {
-    return RunWriter(std::make_shared<RunWriter::Group>(
-        RunWriter::Group{file_->file.openGroup(runs_path(name)), path_}));
-  });
+  return existing_run(file_->file, name, path_);
 }
 
 void ResultsUpdate::commit() {
