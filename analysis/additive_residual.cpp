@@ -3,27 +3,22 @@
 #include <cassert>
 #include <vector>
 
+#include "allocsim/analysis/two_margin_system.hpp"
+
 namespace allocsim {
 namespace {
 
-// Residual when the columns are the smaller side: constants for columns are
-// solved from the Schur complement S b = rhs, S = diag(c) - W^T diag(1/r) W.
+// Residual when the columns are the smaller side.
 Matrix residual_columns_smaller(const Matrix& x, const Matrix& w) {
   const Vector r = w.rowwise().sum();
   const Vector c = w.colwise().sum().transpose();
-  Vector inv_r = Vector::Zero(r.size());
-  for (Eigen::Index i = 0; i < r.size(); ++i) inv_r(i) = r(i) > 0 ? 1.0 / r(i) : 0.0;
-  const Vector xr = w.cwiseProduct(x).rowwise().sum();
-  const Vector xc = w.cwiseProduct(x).colwise().sum().transpose();
-  const Matrix scaled = inv_r.asDiagonal() * w;  // rows of W divided by r_i
-  Eigen::MatrixXd schur = -(w.transpose() * scaled);
-  schur.diagonal() += c;
-  const Vector rhs = xc - scaled.transpose() * xr;
-  const Vector b = schur.completeOrthogonalDecomposition().solve(rhs);
-  const Vector a = inv_r.cwiseProduct(xr - w * b);
+  const Matrix wx = w.cwiseProduct(x);
+  const Vector xr = wx.rowwise().sum();
+  const Vector xc = wx.colwise().sum().transpose();
+  const TwoMarginSolution constants = solve_two_margin_system(w, r, c, xr, xc);
   Matrix residual = x;
-  residual.colwise() -= a;
-  residual.rowwise() -= b.transpose();
+  residual.colwise() -= constants.a;
+  residual.rowwise() -= constants.b.transpose();
   for (Eigen::Index k = 0; k < residual.size(); ++k)
     if (!(w.data()[k] > 0)) residual.data()[k] = 0;
   return residual;

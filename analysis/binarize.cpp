@@ -12,6 +12,7 @@ constexpr BinarizeRule kAllRules[] = {BinarizeRule::positive, BinarizeRule::row_
                                       BinarizeRule::min_count, BinarizeRule::revealed_advantage};
 
 void check_allocation(const Matrix& allocation) {
+  if (allocation.allFinite() && !(allocation.array() < 0).any()) return;
   for (Eigen::Index i = 0; i < allocation.rows(); ++i) {
     for (Eigen::Index j = 0; j < allocation.cols(); ++j) {
       const double v = allocation(i, j);
@@ -90,28 +91,27 @@ BinaryMatrix binarize(const Matrix& allocation, const BinarizeOptions& options) 
   options.validate();
   check_allocation(allocation);
   const double t = options.threshold_value();
+  BinaryMatrix links(allocation.rows(), allocation.cols());
+  switch (options.rule) {
+    case BinarizeRule::positive:
+      links = (allocation.array() > t).cast<std::uint8_t>();
+      return links;
+    case BinarizeRule::min_count:
+      links = (allocation.array() >= t).cast<std::uint8_t>();
+      return links;
+    case BinarizeRule::row_share:
+    case BinarizeRule::revealed_advantage:
+      break;
+  }
   const Vector rows = allocation.rowwise().sum();
   const RowVector cols = allocation.colwise().sum();
   const double total = allocation.sum();
-  BinaryMatrix links = BinaryMatrix::Zero(allocation.rows(), allocation.cols());
   for (Eigen::Index i = 0; i < allocation.rows(); ++i) {
     for (Eigen::Index j = 0; j < allocation.cols(); ++j) {
       const double p = allocation(i, j);
-      bool link = false;
-      switch (options.rule) {
-        case BinarizeRule::positive:
-          link = p > t;
-          break;
-        case BinarizeRule::row_share:
-          link = rows(i) > 0 && p / rows(i) >= t;
-          break;
-        case BinarizeRule::min_count:
-          link = p >= t;
-          break;
-        case BinarizeRule::revealed_advantage:
-          link = rows(i) > 0 && cols(j) > 0 && p * total / (rows(i) * cols(j)) >= t;
-          break;
-      }
+      const bool link = options.rule == BinarizeRule::row_share
+                            ? rows(i) > 0 && p / rows(i) >= t
+                            : rows(i) > 0 && cols(j) > 0 && p * total / (rows(i) * cols(j)) >= t;
       links(i, j) = link ? 1 : 0;
     }
   }

@@ -5,6 +5,8 @@
 #include <limits>
 #include <vector>
 
+#include "allocsim/analysis/two_margin_system.hpp"
+
 namespace allocsim {
 namespace {
 
@@ -18,12 +20,16 @@ State evaluate(const Matrix& x, const Matrix& allowed, const Vector& r, const Ve
                const Vector& a, const Vector& b) {
   State s;
   s.pi.resize(x.rows(), x.cols());
-  for (Eigen::Index i = 0; i < x.rows(); ++i)
-    for (Eigen::Index j = 0; j < x.cols(); ++j)
-      s.pi(i, j) = allowed(i, j) > 0 ? std::exp(x(i, j) + a(i) + b(j)) : 0.0;
-  s.row_sum = s.pi.rowwise().sum();
-  s.column_sum = s.pi.colwise().sum().transpose();
-  s.objective = s.pi.sum() - a.dot(r) - b.dot(c);
+  s.row_sum.resize(x.rows());
+  s.column_sum = Vector::Zero(x.cols());
+  const auto shift = b.transpose().array();
+  for (Eigen::Index i = 0; i < x.rows(); ++i) {
+    s.pi.row(i).array() =
+        (allowed.row(i).array() > 0).select((x.row(i).array() + a(i) + shift).exp(), 0.0);
+    s.row_sum(i) = s.pi.row(i).sum();
+    s.column_sum += s.pi.row(i).transpose();
+  }
+  s.objective = s.row_sum.sum() - a.dot(r) - b.dot(c);
   if (!std::isfinite(s.objective)) s.objective = std::numeric_limits<double>::infinity();
   return s;
 }
@@ -53,17 +59,11 @@ void sinkhorn_sweep(const Matrix& x, const Matrix& allowed, const Vector& r, con
   }
 }
 
-// Newton direction: H [da; db] = -[gr; gc], a eliminated, b from the Schur complement.
+// Newton direction: H [da; db] = -[gr; gc] (two_margin_system.hpp).
 void newton_direction(const State& s, const Vector& gr, const Vector& gc, Vector& da, Vector& db) {
-  Vector inv_rho(s.row_sum.size());
-  for (Eigen::Index i = 0; i < inv_rho.size(); ++i)
-    inv_rho(i) = s.row_sum(i) > 0 ? 1.0 / s.row_sum(i) : 0.0;
-  const Matrix scaled = inv_rho.asDiagonal() * s.pi;
-  Eigen::MatrixXd schur = -(s.pi.transpose() * scaled);
-  schur.diagonal() += s.column_sum;
-  const Vector rhs = -gc + scaled.transpose() * gr;
-  db = schur.completeOrthogonalDecomposition().solve(rhs);
-  da = -inv_rho.cwiseProduct(gr + s.pi * db);
+  TwoMarginSolution step = solve_two_margin_system(s.pi, s.row_sum, s.column_sum, -gr, -gc);
+  da = std::move(step.a);
+  db = std::move(step.b);
 }
 
 MarginalFit match_columns_smaller(const Matrix& x, const Matrix& allowed, const Vector& r,

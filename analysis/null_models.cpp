@@ -19,7 +19,8 @@ namespace {
 
 using Index = Eigen::Index;
 
-double uniform01(std::mt19937_64& rng) {
+template <class Rng>
+double uniform01(Rng& rng) {
   return std::uniform_real_distribution<double>(0.0, 1.0)(rng);
 }
 
@@ -32,18 +33,14 @@ std::vector<double> log_factorials(long size) {
 
 }  // namespace
 
-// sample_table_with_margins with log(k!) for k = 0 .. total given (the
-// sampler keeps it: it costs a log per unit of the total).
-Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
-                       const std::vector<double>& log_factorial, std::mt19937_64& rng);
-
 namespace {
 
 // Inversion sampling of Hypergeometric(population, successes, draws),
 // summing probabilities outward from the mode (as AS 159 does); the mode's
 // probability comes from `log_factorial` (covering 0 .. population).
+template <class Rng>
 long hypergeometric_from_mode(long population, long successes, long draws,
-                              const std::vector<double>& log_factorial, std::mt19937_64& rng) {
+                              const std::vector<double>& log_factorial, Rng& rng) {
   const long failures = population - successes;
   const long low = std::max(0L, draws - failures);
   const long high = std::min(draws, successes);
@@ -286,22 +283,13 @@ bool holds_counts(const Matrix& matrix) {
   return (matrix.array() == matrix.array().round()).all() && (matrix.array() >= 0).all();
 }
 
-long sample_hypergeometric(long population, long successes, long draws, std::mt19937_64& rng) {
-  assert(population >= 0 && successes >= 0 && draws >= 0);
-  assert(successes <= population && draws <= population);
-  return hypergeometric_from_mode(population, successes, draws, log_factorials(population + 1),
-                                  rng);
-}
+namespace {
 
-Matrix sample_table_with_margins(const std::vector<long>& row_totals,
-                                 const std::vector<long>& column_totals, std::mt19937_64& rng) {
-  return patefield_table(
-      row_totals, column_totals,
-      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng);
-}
-
+// Patefield's construction with log(k!) for k = 0 .. total given (the
+// sampler keeps it: it costs a log per unit of the total).
+template <class Rng>
 Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
-                       const std::vector<double>& log_factorial, std::mt19937_64& rng) {
+                       const std::vector<double>& log_factorial, Rng& rng) {
   const std::size_t n = row_totals.size(), m = column_totals.size();
   assert(std::accumulate(row_totals.begin(), row_totals.end(), 0L) ==
          std::accumulate(column_totals.begin(), column_totals.end(), 0L));
@@ -311,22 +299,24 @@ Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<lo
   for (std::size_t i = 0; i + 1 < n; ++i) {
     long row_left = row_totals[i];
     long pool = std::accumulate(column_left.begin(), column_left.end(), 0L);
+    double* row = table.row(static_cast<Index>(i)).data();
     for (std::size_t j = 0; j + 1 < m && row_left > 0; ++j) {
       const long x = hypergeometric_from_mode(pool, column_left[j], row_left, log_factorial, rng);
-      table(i, j) = static_cast<double>(x);
+      row[j] = static_cast<double>(x);
       row_left -= x;
       pool -= column_left[j];
       column_left[j] -= x;
     }
-    table(i, m - 1) += static_cast<double>(row_left);
+    row[m - 1] += static_cast<double>(row_left);
     column_left[m - 1] -= row_left;
   }
   for (std::size_t j = 0; j < m; ++j) table(n - 1, j) = static_cast<double>(column_left[j]);
   return table;
 }
 
-Matrix sample_multinomial_table(const Vector& row_totals, const Vector& column_totals, long units,
-                                std::mt19937_64& rng) {
+template <class Rng>
+Matrix multinomial_table(const Vector& row_totals, const Vector& column_totals, long units,
+                         Rng& rng) {
   const Index n = row_totals.size(), m = column_totals.size();
   const double mass = row_totals.sum() * column_totals.sum();
   Matrix table = Matrix::Zero(n, m);
@@ -344,6 +334,42 @@ Matrix sample_multinomial_table(const Vector& row_totals, const Vector& column_t
   }
   if (left > 0) table(n - 1, m - 1) += static_cast<double>(left);  // rounding of mass_left only
   return table;
+}
+
+// Links with the given probabilities as a matrix of 0 and 1, the uniform
+// draws taken a row at a time (the same draws, in the same order, as
+// uniform01 cell by cell).
+Matrix links_as_matrix(const Matrix& probabilities, MersenneTwister64& rng) {
+  Matrix links(probabilities.rows(), probabilities.cols());
+  std::vector<double> u(static_cast<std::size_t>(probabilities.cols()));
+  for (Index i = 0; i < probabilities.rows(); ++i) {
+    rng.fill_unit(u.data(), u.size());
+    const double* p = probabilities.row(i).data();
+    double* out = links.row(i).data();
+    for (std::size_t j = 0; j < u.size(); ++j) out[j] = u[j] < p[j] ? 1.0 : 0.0;
+  }
+  return links;
+}
+
+}  // namespace
+
+long sample_hypergeometric(long population, long successes, long draws, std::mt19937_64& rng) {
+  assert(population >= 0 && successes >= 0 && draws >= 0);
+  assert(successes <= population && draws <= population);
+  return hypergeometric_from_mode(population, successes, draws, log_factorials(population + 1),
+                                  rng);
+}
+
+Matrix sample_table_with_margins(const std::vector<long>& row_totals,
+                                 const std::vector<long>& column_totals, std::mt19937_64& rng) {
+  return patefield_table(
+      row_totals, column_totals,
+      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng);
+}
+
+Matrix sample_multinomial_table(const Vector& row_totals, const Vector& column_totals, long units,
+                                std::mt19937_64& rng) {
+  return multinomial_table(row_totals, column_totals, units, rng);
 }
 
 // ---- BiCM ----
@@ -451,7 +477,10 @@ CurveballChain::CurveballChain(const BinaryMatrix& start, std::uint64_t seed)
     : rows_(static_cast<std::size_t>(start.rows())),
       columns_(start.cols()),
       rng_(seed),
-      marks_(static_cast<std::size_t>(start.cols()), 0) {
+      marks_(static_cast<std::size_t>(start.cols()), 0),
+      shared_(static_cast<std::size_t>(start.cols())),
+      only_second_(static_cast<std::size_t>(start.cols())),
+      pool_(static_cast<std::size_t>(start.cols())) {
   for (Index i = 0; i < start.rows(); ++i)
     for (Index j = 0; j < start.cols(); ++j)
       if (start(i, j)) rows_[i].push_back(static_cast<int>(j));
@@ -471,26 +500,37 @@ void CurveballChain::trade_once() {
   ++trades_done_;
   std::vector<int>& first = rows_[a];
   std::vector<int>& second = rows_[b];
-  for (int j : first) marks_[j] = 1;
-  shared_.clear();
-  only_second_.clear();
-  for (int j : second) (marks_[j] ? shared_ : only_second_).push_back(j);
-  for (int j : second) marks_[j] = 0;
-  for (int j : shared_) marks_[j] = 2;
-  only_first_.clear();
-  for (int j : first) {
-    if (marks_[j] != 2) only_first_.push_back(j);
-    marks_[j] = 0;
+  // Columns of `second` split into shared and only-second ones, and those of
+  // `first` into only-first ones, each in its row's order; written to both
+  // outputs and counted in one, with no branch on the (random) outcome.
+  std::int8_t* marks = marks_.data();
+  int* shared = shared_.data();
+  int* pool = pool_.data();  // only-first columns, then only-second ones
+  int* only_second = only_second_.data();
+  std::size_t shared_count = 0, second_count = 0, first_count = 0;
+  for (const int j : first) marks[j] = 1;
+  for (const int j : second) {
+    const int in_first = marks[j];
+    shared[shared_count] = j;
+    only_second[second_count] = j;
+    shared_count += static_cast<std::size_t>(in_first);
+    second_count += static_cast<std::size_t>(1 - in_first);
+    marks[j] = static_cast<std::int8_t>(2 * in_first);
   }
-  for (int j : shared_) marks_[j] = 0;
-  if (only_first_.empty() || only_second_.empty()) return;
-  const std::size_t keep = only_first_.size();
-  only_first_.insert(only_first_.end(), only_second_.begin(), only_second_.end());
-  std::shuffle(only_first_.begin(), only_first_.end(), rng_);
-  first = shared_;
-  first.insert(first.end(), only_first_.begin(), only_first_.begin() + keep);
-  second = shared_;
-  second.insert(second.end(), only_first_.begin() + keep, only_first_.end());
+  for (const int j : first) {
+    pool[first_count] = j;
+    first_count += static_cast<std::size_t>(marks[j] == 1);
+    marks[j] = 0;
+  }
+  if (first_count == 0 || second_count == 0) return;
+  std::copy(only_second, only_second + second_count, pool + first_count);
+  std::shuffle(pool, pool + first_count + second_count, rng_);
+  // Each row keeps its length: the shared columns, then its share of the pool.
+  std::copy(shared, shared + shared_count, first.begin());
+  std::copy(pool, pool + first_count, first.begin() + static_cast<std::ptrdiff_t>(shared_count));
+  std::copy(shared, shared + shared_count, second.begin());
+  std::copy(pool + first_count, pool + first_count + second_count,
+            second.begin() + static_cast<std::ptrdiff_t>(shared_count));
 }
 
 BinaryMatrix CurveballChain::matrix() const {
@@ -560,12 +600,11 @@ Matrix NullSampler::next() {
       if (counts_) return patefield_table(row_counts_, column_counts_, log_factorial_, rng_);
       const double total = reference_.sum();
       if (!(total > 0)) return reference_;
-      Matrix table =
-          sample_multinomial_table(row_totals_, column_totals_, options_.share_units, rng_);
+      Matrix table = multinomial_table(row_totals_, column_totals_, options_.share_units, rng_);
       return table * (total / static_cast<double>(options_.share_units));
     }
     case NullModel::bicm:
-      return to_matrix(sample_links(bicm_fit_.probabilities, rng_));
+      return links_as_matrix(bicm_fit_.probabilities, rng_);
     case NullModel::curveball:
       chain_->trade(trades_between_);
       return to_matrix(chain_->matrix());

@@ -23,8 +23,10 @@ allocsim_layer(analysis
     analysis/nestedness.cpp
     analysis/rankings.cpp
     analysis/null_models.cpp
+    analysis/mersenne_twister_64.cpp
     analysis/compare.cpp
     analysis/additive_residual.cpp
+    analysis/two_margin_system.cpp
     analysis/observed_allocation.cpp
     analysis/temperature.cpp
     analysis/marginal_newton.cpp

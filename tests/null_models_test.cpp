@@ -1,5 +1,6 @@
 #include "allocsim/analysis/null_models.hpp"
 
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <chrono>
 #include <cmath>
@@ -246,6 +247,64 @@ TEST_CASE("curveball keeps every row and column sum and moves") {
   }
   CHECK(moves == 50);
   CHECK(chain.trades_done() == 1500);
+}
+
+// The curveball trade written plainly (two rows as column lists, the
+// columns only one row links to pooled in row order and shuffled): the
+// chain must take exactly these steps, draw for draw.
+class PlainCurveball {
+ public:
+  PlainCurveball(const BinaryMatrix& start, std::uint64_t seed) : rows_(start.rows()), rng_(seed) {
+    for (Eigen::Index i = 0; i < start.rows(); ++i)
+      for (Eigen::Index j = 0; j < start.cols(); ++j)
+        if (start(i, j)) rows_[i].push_back(static_cast<int>(j));
+    columns_ = start.cols();
+  }
+  void trade() {
+    const std::size_t n = rows_.size();
+    const std::size_t a = std::uniform_int_distribution<std::size_t>(0, n - 1)(rng_);
+    std::size_t b = std::uniform_int_distribution<std::size_t>(0, n - 2)(rng_);
+    if (b >= a) ++b;
+    std::vector<int>&first = rows_[a], &second = rows_[b];
+    std::vector<int> shared, only_first, only_second;
+    for (int j : second)
+      (std::find(first.begin(), first.end(), j) != first.end() ? shared : only_second).push_back(j);
+    for (int j : first)
+      if (std::find(second.begin(), second.end(), j) == second.end()) only_first.push_back(j);
+    if (only_first.empty() || only_second.empty()) return;
+    const std::size_t keep = only_first.size();
+    only_first.insert(only_first.end(), only_second.begin(), only_second.end());
+    std::shuffle(only_first.begin(), only_first.end(), rng_);
+    first = shared;
+    first.insert(first.end(), only_first.begin(), only_first.begin() + keep);
+    second = shared;
+    second.insert(second.end(), only_first.begin() + keep, only_first.end());
+  }
+  BinaryMatrix matrix() const {
+    BinaryMatrix m = BinaryMatrix::Zero(static_cast<Eigen::Index>(rows_.size()), columns_);
+    for (std::size_t i = 0; i < rows_.size(); ++i)
+      for (int j : rows_[i]) m(static_cast<Eigen::Index>(i), j) = 1;
+    return m;
+  }
+
+ private:
+  std::vector<std::vector<int>> rows_;
+  Eigen::Index columns_ = 0;
+  std::mt19937_64 rng_;
+};
+
+TEST_CASE("curveball trades are those of the plain trade, draw for draw") {
+  for (const char* name : {"structure_random_30x40.csv", "structure_nested_25x20.csv"}) {
+    INFO(name);
+    const BinaryMatrix start = read_links(name);
+    CurveballChain chain(start, 97);
+    PlainCurveball plain(start, 97);
+    for (int s = 0; s < 40; ++s) {
+      chain.trade(25);
+      for (int t = 0; t < 25; ++t) plain.trade();
+      REQUIRE(chain.matrix() == plain.matrix());
+    }
+  }
 }
 
 TEST_CASE("curveball on a perfectly nested matrix can only return it") {

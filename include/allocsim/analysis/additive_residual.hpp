@@ -13,11 +13,11 @@
 // the row and column effects as nuisance; see e.g. Agresti, Categorical Data
 // Analysis, ch. 9, log-linear models).
 //
-// Solved exactly from the normal equations: the row constants are
-// eliminated and the column constants solved from the (m x m, or n x n when
-// n < m) Schur complement by a complete orthogonal decomposition, so weights
-// that split the matrix into disconnected blocks are handled (minimum-norm
-// constants). Cost O(n m min(n, m) + min(n, m)^3).
+// Solved exactly from the normal equations (two_margin_system.hpp): the row
+// constants are eliminated and the column constants (the smaller side)
+// solved from the Schur complement, so weights that split the matrix into
+// disconnected blocks are handled (minimum-norm constants). Cost
+// O(n m min(n, m) / 2 + min(n, m)^3 / 3).
 #pragma once
 
 #include <vector>

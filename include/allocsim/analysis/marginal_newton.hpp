@@ -8,14 +8,14 @@
 //   D(a, b) = sum_ij pi_ij(a, b) - <a, r> - <b, c>
 // with Newton steps and a backtracking (Armijo) line search. Its Hessian is
 // [[diag(pi 1), pi], [pi^T, diag(pi^T 1)]]; a step eliminates a and solves
-// the Schur complement in b (the smaller side) by a complete orthogonal
-// decomposition, so the direction along which a + t, b - t leaves pi
-// unchanged does no harm. Converges quadratically near the solution, where
+// the Schur complement in b (the smaller side; two_margin_system.hpp), whose
+// minimum-norm solution ignores the direction along which a + t, b - t
+// leaves pi unchanged. Converges quadratically near the solution, where
 // Sinkhorn's iterations (the same fixed point, Sinkhorn 1964) slow down
 // when exp(X) is badly conditioned (a small transport temperature). Where
 // rounding spoils a Newton direction (no descent, or no step of the line
 // search helps) one log-domain Sinkhorn sweep is taken instead. Each Newton
-// step costs O(n m min(n, m) + min(n, m)^3).
+// step costs O(n m min(n, m) / 2 + min(n, m)^3 / 3) on one thread.
 //
 // Stopping rule as for entropic transport: (|pi 1 - r|_1 + |pi^T 1 - c|_1) /
 // sum(r) <= tolerance.

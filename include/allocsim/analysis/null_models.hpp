@@ -31,8 +31,9 @@
 //   (Carstens 2015, Phys. Rev. E 91:042812, from memory).
 //
 // Randomness: every sampler takes an explicit std::uint64_t seed for a
-// std::mt19937_64; the same seed gives the same ensemble (with the same
-// standard library, whose distributions are used for binomial draws).
+// std::mt19937_64 (MersenneTwister64 inside the samplers: the same numbers);
+// the same seed gives the same ensemble (with the same standard library,
+// whose distributions are used for binomial draws and shuffles).
 #pragma once
 
 #include <cstdint>
@@ -43,6 +44,7 @@
 #include <vector>
 
 #include "allocsim/analysis/binarize.hpp"
+#include "allocsim/analysis/mersenne_twister_64.hpp"
 #include "allocsim/core/matrix.hpp"
 
 namespace allocsim {
@@ -114,9 +116,9 @@ class CurveballChain {
 
   std::vector<std::vector<int>> rows_;  // the columns each row links to
   Eigen::Index columns_ = 0;
-  std::mt19937_64 rng_;
-  std::vector<int> marks_;  // scratch, one per column
-  std::vector<int> only_first_, only_second_, shared_;
+  MersenneTwister64 rng_;
+  std::vector<std::int8_t> marks_;                // scratch, one per column
+  std::vector<int> shared_, only_second_, pool_;  // scratch, one slot per column
   long trades_done_ = 0;
 };
 
@@ -154,7 +156,7 @@ class NullSampler {
   NullOptions options_;
   Matrix reference_;
   std::string description_;
-  std::mt19937_64 rng_;
+  MersenneTwister64 rng_;
   bool counts_ = false;
   std::vector<long> row_counts_, column_counts_;
   std::vector<double> log_factorial_;  // log(k!) up to the total count
