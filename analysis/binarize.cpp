@@ -1,6 +1,7 @@
 #include "allocsim/analysis/binarize.hpp"
 
 #include <cmath>
+#include <limits>
 #include <sstream>
 
 #include "allocsim/core/error.hpp"
@@ -12,7 +13,11 @@ constexpr BinarizeRule kAllRules[] = {BinarizeRule::positive, BinarizeRule::row_
                                       BinarizeRule::min_count, BinarizeRule::revealed_advantage};
 
 void check_allocation(const Matrix& allocation) {
-  if (allocation.allFinite() && !(allocation.array() < 0).any()) return;
+  const double* x = allocation.data();
+  bool usable = true;  // finite and >= 0 (NaN fails both comparisons)
+  for (Eigen::Index k = 0; k < allocation.size(); ++k)
+    usable &= (x[k] >= 0) & (x[k] <= std::numeric_limits<double>::max());
+  if (usable) return;
   for (Eigen::Index i = 0; i < allocation.rows(); ++i) {
     for (Eigen::Index j = 0; j < allocation.cols(); ++j) {
       const double v = allocation(i, j);
@@ -94,10 +99,12 @@ BinaryMatrix binarize(const Matrix& allocation, const BinarizeOptions& options) 
   BinaryMatrix links(allocation.rows(), allocation.cols());
   switch (options.rule) {
     case BinarizeRule::positive:
-      links = (allocation.array() > t).cast<std::uint8_t>();
+      for (Eigen::Index k = 0; k < allocation.size(); ++k)
+        links.data()[k] = allocation.data()[k] > t;
       return links;
     case BinarizeRule::min_count:
-      links = (allocation.array() >= t).cast<std::uint8_t>();
+      for (Eigen::Index k = 0; k < allocation.size(); ++k)
+        links.data()[k] = allocation.data()[k] >= t;
       return links;
     case BinarizeRule::row_share:
     case BinarizeRule::revealed_advantage:

@@ -288,13 +288,13 @@ namespace {
 // Patefield's construction with log(k!) for k = 0 .. total given (the
 // sampler keeps it: it costs a log per unit of the total).
 template <class Rng>
-Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
-                       const std::vector<double>& log_factorial, Rng& rng) {
+void patefield_table(const std::vector<long>& row_totals, const std::vector<long>& column_totals,
+                     const std::vector<double>& log_factorial, Rng& rng, Matrix& table) {
   const std::size_t n = row_totals.size(), m = column_totals.size();
   assert(std::accumulate(row_totals.begin(), row_totals.end(), 0L) ==
          std::accumulate(column_totals.begin(), column_totals.end(), 0L));
-  Matrix table = Matrix::Zero(static_cast<Index>(n), static_cast<Index>(m));
-  if (n == 0 || m == 0) return table;
+  table.setZero(static_cast<Index>(n), static_cast<Index>(m));
+  if (n == 0 || m == 0) return;
   std::vector<long> column_left = column_totals;
   for (std::size_t i = 0; i + 1 < n; ++i) {
     long row_left = row_totals[i];
@@ -311,7 +311,6 @@ Matrix patefield_table(const std::vector<long>& row_totals, const std::vector<lo
     column_left[m - 1] -= row_left;
   }
   for (std::size_t j = 0; j < m; ++j) table(n - 1, j) = static_cast<double>(column_left[j]);
-  return table;
 }
 
 template <class Rng>
@@ -339,8 +338,8 @@ Matrix multinomial_table(const Vector& row_totals, const Vector& column_totals, 
 // Links with the given probabilities as a matrix of 0 and 1, the uniform
 // draws taken a row at a time (the same draws, in the same order, as
 // uniform01 cell by cell).
-Matrix links_as_matrix(const Matrix& probabilities, MersenneTwister64& rng) {
-  Matrix links(probabilities.rows(), probabilities.cols());
+void links_as_matrix(const Matrix& probabilities, MersenneTwister64& rng, Matrix& links) {
+  links.resize(probabilities.rows(), probabilities.cols());
   std::vector<double> u(static_cast<std::size_t>(probabilities.cols()));
   for (Index i = 0; i < probabilities.rows(); ++i) {
     rng.fill_unit(u.data(), u.size());
@@ -348,7 +347,6 @@ Matrix links_as_matrix(const Matrix& probabilities, MersenneTwister64& rng) {
     double* out = links.row(i).data();
     for (std::size_t j = 0; j < u.size(); ++j) out[j] = u[j] < p[j] ? 1.0 : 0.0;
   }
-  return links;
 }
 
 }  // namespace
@@ -362,9 +360,12 @@ long sample_hypergeometric(long population, long successes, long draws, std::mt1
 
 Matrix sample_table_with_margins(const std::vector<long>& row_totals,
                                  const std::vector<long>& column_totals, std::mt19937_64& rng) {
-  return patefield_table(
+  Matrix table;
+  patefield_table(
       row_totals, column_totals,
-      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng);
+      log_factorials(std::accumulate(column_totals.begin(), column_totals.end(), 0L) + 1), rng,
+      table);
+  return table;
 }
 
 Matrix sample_multinomial_table(const Vector& row_totals, const Vector& column_totals, long units,
@@ -493,9 +494,9 @@ void CurveballChain::trade(long count) {
 
 void CurveballChain::trade_once() {
   const std::size_t n = rows_.size();
-  std::uniform_int_distribution<std::size_t> pick(0, n - 1);
-  const std::size_t a = pick(rng_);
-  std::size_t b = std::uniform_int_distribution<std::size_t>(0, n - 2)(rng_);
+  // The draws of std::uniform_int_distribution(0, n - 1) and (0, n - 2).
+  const std::size_t a = rng_.below(n);
+  std::size_t b = rng_.below(n - 1);
   if (b >= a) ++b;
   ++trades_done_;
   std::vector<int>& first = rows_[a];
@@ -524,13 +525,21 @@ void CurveballChain::trade_once() {
   }
   if (first_count == 0 || second_count == 0) return;
   std::copy(only_second, only_second + second_count, pool + first_count);
-  std::shuffle(pool, pool + first_count + second_count, rng_);
+  rng_.shuffle(pool, first_count + second_count);  // as std::shuffle
   // Each row keeps its length: the shared columns, then its share of the pool.
   std::copy(shared, shared + shared_count, first.begin());
   std::copy(pool, pool + first_count, first.begin() + static_cast<std::ptrdiff_t>(shared_count));
   std::copy(shared, shared + shared_count, second.begin());
   std::copy(pool + first_count, pool + first_count + second_count,
             second.begin() + static_cast<std::ptrdiff_t>(shared_count));
+}
+
+void CurveballChain::write(Matrix& out) const {
+  out.setZero(static_cast<Index>(rows_.size()), columns_);
+  for (std::size_t i = 0; i < rows_.size(); ++i) {
+    double* row = out.row(static_cast<Index>(i)).data();
+    for (int j : rows_[i]) row[j] = 1.0;
+  }
 }
 
 BinaryMatrix CurveballChain::matrix() const {
@@ -595,21 +604,36 @@ NullSampler::NullSampler(const Matrix& observed, const NullOptions& options)
 }
 
 Matrix NullSampler::next() {
+  Matrix sample;
+  next(sample);
+  return sample;
+}
+
+void NullSampler::next(Matrix& sample) {
   switch (options_.model) {
     case NullModel::fixed_margins: {
-      if (counts_) return patefield_table(row_counts_, column_counts_, log_factorial_, rng_);
+      if (counts_) {
+        patefield_table(row_counts_, column_counts_, log_factorial_, rng_, sample);
+        return;
+      }
       const double total = reference_.sum();
-      if (!(total > 0)) return reference_;
-      Matrix table = multinomial_table(row_totals_, column_totals_, options_.share_units, rng_);
-      return table * (total / static_cast<double>(options_.share_units));
+      if (!(total > 0)) {
+        sample = reference_;
+        return;
+      }
+      sample = multinomial_table(row_totals_, column_totals_, options_.share_units, rng_) *
+               (total / static_cast<double>(options_.share_units));
+      return;
     }
     case NullModel::bicm:
-      return links_as_matrix(bicm_fit_.probabilities, rng_);
+      links_as_matrix(bicm_fit_.probabilities, rng_, sample);
+      return;
     case NullModel::curveball:
       chain_->trade(trades_between_);
-      return to_matrix(chain_->matrix());
+      chain_->write(sample);
+      return;
   }
-  return reference_;
+  sample = reference_;
 }
 
 // ---- comparison ----
@@ -663,7 +687,7 @@ class EnsembleEvaluation {
         drawing_ = true;
         const long s = drawn_;
         lock.unlock();
-        const bool ok = attempt([&] { slot(s) = sampler_.next(); });
+        const bool ok = attempt([&] { sampler_.next(slot(s)); });
         lock.lock();
         drawing_ = false;
         if (ok) ++drawn_;
@@ -727,8 +751,9 @@ std::vector<std::vector<double>> evaluate_ensemble(NullSampler& sampler,
   if (threads <= 1) {
     std::vector<std::vector<double>> values(metrics.size());
     for (auto& v : values) v.reserve(static_cast<std::size_t>(count));
+    Matrix sample;
     for (long s = 0; s < count; ++s) {
-      const Matrix sample = sampler.next();
+      sampler.next(sample);
       for (std::size_t k = 0; k < metrics.size(); ++k) values[k].push_back(metrics[k](sample));
     }
     return values;

@@ -52,3 +52,25 @@ TEST_CASE("MersenneTwister64::unit maps the largest outputs below 1") {
   CHECK(MersenneTwister64::unit(~std::uint64_t{0}) < 1.0);
   CHECK(MersenneTwister64::unit(std::uint64_t{1} << 63) == 0.5);
 }
+
+TEST_CASE("MersenneTwister64's own shuffle and bounded draws equal the standard ones") {
+  std::mt19937_64 reference(7);
+  MersenneTwister64 ours(7);
+  for (int size = 0; size <= 1200; size += (size < 40 ? 1 : 97)) {
+    INFO("size " << size);
+    std::vector<int> a(static_cast<std::size_t>(size)), b;
+    std::iota(a.begin(), a.end(), 0);
+    b = a;
+    std::shuffle(a.begin(), a.end(), reference);
+    ours.shuffle(b.data(), b.size());
+    REQUIRE(a == b);
+    const std::uint64_t range = static_cast<std::uint64_t>(size) + 1;
+    REQUIRE(ours.below(range) ==
+            std::uniform_int_distribution<std::uint64_t>(0, range - 1)(reference));
+  }
+  // Ranges near 2^64, where rejections happen.
+  const std::uint64_t huge = (std::uint64_t{1} << 63) + 12345;
+  for (int k = 0; k < 200; ++k)
+    REQUIRE(ours.below(huge) ==
+            std::uniform_int_distribution<std::uint64_t>(0, huge - 1)(reference));
+}

@@ -13,6 +13,7 @@
 #include <array>
 #include <cstddef>
 #include <cstdint>
+#include <utility>
 
 namespace allocsim {
 
@@ -34,6 +35,25 @@ class MersenneTwister64 {
   // The next `count` outputs as unit() values, in order.
   void fill_unit(double* out, std::size_t count);
 
+  // What std::uniform_int_distribution<std::uint64_t>(0, range - 1) gives
+  // with the GNU library (Lemire's multiply-and-reject): range >= 1.
+  std::uint64_t below(std::uint64_t range) {
+    unsigned __int128 product = static_cast<unsigned __int128>((*this)()) * range;
+    std::uint64_t low = static_cast<std::uint64_t>(product);
+    if (low < range) {
+      const std::uint64_t threshold = -range % range;
+      while (low < threshold) {
+        product = static_cast<unsigned __int128>((*this)()) * range;
+        low = static_cast<std::uint64_t>(product);
+      }
+    }
+    return static_cast<std::uint64_t>(product >> 64);
+  }
+  // The permutation std::shuffle(first, first + count, *this) makes with
+  // the GNU library (two positions per draw), for count < 2^31.
+  template <class T>
+  void shuffle(T* first, std::size_t count);
+
   static double unit(std::uint64_t x) {
     const double u = static_cast<double>(x) * 0x1p-64;
     return u < 1.0 ? u : 0x1.fffffffffffffp-1;
@@ -52,5 +72,28 @@ class MersenneTwister64 {
   std::array<std::uint64_t, kStateWords> state_;
   std::size_t next_ = kStateWords;
 };
+
+template <class T>
+void MersenneTwister64::shuffle(T* first, std::size_t count) {
+  if (count < 2) return;
+  std::size_t i = 1;
+  if (count % 2 == 0) std::swap(first[i++], first[below(2)]);
+  while (i != count) {
+    const std::uint64_t range = i + 1;  // positions 0 .. i for element i, 0 .. i + 1 for i + 1
+    const std::uint64_t both = below(range * (range + 1));
+    // both < 2^62: the quotient and remainder fit the 32-bit division when small.
+    std::uint64_t first_position, second_position;
+    if (both <= 0xFFFFFFFFULL) {
+      const auto x = static_cast<std::uint32_t>(both), r = static_cast<std::uint32_t>(range + 1);
+      first_position = x / r;
+      second_position = x % r;
+    } else {
+      first_position = both / (range + 1);
+      second_position = both % (range + 1);
+    }
+    std::swap(first[i++], first[first_position]);
+    std::swap(first[i++], first[second_position]);
+  }
+}
 
 }  // namespace allocsim

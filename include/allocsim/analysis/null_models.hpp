@@ -109,6 +109,8 @@ class CurveballChain {
   // Performs `count` trades, each between two distinct rows drawn uniformly.
   void trade(long count);
   BinaryMatrix matrix() const;
+  // The current matrix as 0.0 / 1.0 into `out` (resized; its storage reused).
+  void write(Matrix& out) const;
   long trades_done() const { return trades_done_; }
 
  private:
@@ -147,6 +149,8 @@ class NullSampler {
   // for binary models, the observed matrix itself otherwise.
   const Matrix& reference() const { return reference_; }
   Matrix next();
+  // The same draw into `sample` (resized; its storage reused).
+  void next(Matrix& sample);
   // One line, e.g. "curveball (degrees fixed exactly), 500 trades between samples".
   const std::string& description() const { return description_; }
   // Set for bicm: the fit used.
