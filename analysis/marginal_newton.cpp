@@ -16,9 +16,9 @@ struct State {
   Vector row_sum, column_sum;
 };
 
-State evaluate(const Matrix& x, const Matrix& allowed, const Vector& r, const Vector& c,
-               const Vector& a, const Vector& b) {
-  State s;
+// Fills `s` for (a, b), reusing its storage.
+void evaluate(const Matrix& x, const Matrix& allowed, const Vector& r, const Vector& c,
+              const Vector& a, const Vector& b, State& s) {
   s.pi.resize(x.rows(), x.cols());
   s.row_sum.resize(x.rows());
   s.column_sum = Vector::Zero(x.cols());
@@ -31,7 +31,6 @@ State evaluate(const Matrix& x, const Matrix& allowed, const Vector& r, const Ve
   }
   s.objective = s.row_sum.sum() - a.dot(r) - b.dot(c);
   if (!std::isfinite(s.objective)) s.objective = std::numeric_limits<double>::infinity();
-  return s;
 }
 
 // One log-domain Sinkhorn sweep (rows, then columns): always lowers the
@@ -71,7 +70,8 @@ MarginalFit match_columns_smaller(const Matrix& x, const Matrix& allowed, const 
                                   long max_iterations) {
   MarginalFit fit;
   const double total = r.sum();
-  State s = evaluate(x, allowed, r, c, a, b);
+  State s, next;
+  evaluate(x, allowed, r, c, a, b, s);
   for (;;) {
     const Vector gr = s.row_sum - r, gc = s.column_sum - c;
     fit.violation = (gr.lpNorm<1>() + gc.lpNorm<1>()) / total;
@@ -86,29 +86,28 @@ MarginalFit match_columns_smaller(const Matrix& x, const Matrix& allowed, const 
     const double slope = gr.dot(da) + gc.dot(db);
     if (!(slope < 0)) {  // the direction lost its precision: one Sinkhorn sweep instead
       sinkhorn_sweep(x, allowed, r, c, a, b);
-      s = evaluate(x, allowed, r, c, a, b);
+      evaluate(x, allowed, r, c, a, b, s);
       continue;
     }
     // Backtracking: a step is taken when D falls enough (Armijo) or, where
     // rounding hides changes of D near the solution, when the marginal
     // violation falls by a tenth.
     double t = 1.0;
-    State next;
     bool accepted = false;
     for (int halvings = 0; halvings < 40 && !accepted; ++halvings) {
-      next = evaluate(x, allowed, r, c, a + t * da, b + t * db);
+      evaluate(x, allowed, r, c, a + t * da, b + t * db, next);
       const double v = ((next.row_sum - r).lpNorm<1>() + (next.column_sum - c).lpNorm<1>()) / total;
       accepted = next.objective <= s.objective + 1e-4 * t * slope || v < 0.9 * fit.violation;
       if (!accepted) t *= 0.5;
     }
     if (!accepted) {
       sinkhorn_sweep(x, allowed, r, c, a, b);
-      s = evaluate(x, allowed, r, c, a, b);
+      evaluate(x, allowed, r, c, a, b, s);
       continue;
     }
     a += t * da;
     b += t * db;
-    s = std::move(next);
+    std::swap(s, next);
   }
   fit.row_effect = a;
   fit.column_effect = b;
