@@ -85,13 +85,15 @@ allocsim_layer(plots
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/level_plots.cpp
     plots/null_histogram.cpp
     plots/results_figures.cpp
     plots/ordering.cpp
     plots/scores.cpp
     plots/series.cpp
     plots/trajectories.cpp
-  LINKS allocsim::results allocsim_gnuplot)
+    plots/trend_summary.cpp
+  LINKS allocsim::experiments allocsim_gnuplot)
 include(plots/style.cmake)
 
 add_executable(allocsim
