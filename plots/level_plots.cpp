@@ -17,6 +17,16 @@ int panel_rows(std::size_t panels) {
                           static_cast<std::size_t>(columns));
 }
 
+// Panels: pixels above the panels (figure title and panel title), below
+// them (tic labels and x label), between two rows, per panel; the legend's
+// column at the right.
+constexpr int kTop = 90, kBottom = 80, kBetweenRows = 130, kPanelHeight = 330, kLegendWidth = 380;
+
+int panels_height(std::size_t panels) {
+  const int rows = panel_rows(panels);
+  return kTop + rows * kPanelHeight + (rows - 1) * kBetweenRows + kBottom;
+}
+
 }  // namespace
 
 int level_style(int level) { return 1 + (level < 0 ? 0 : level % 8); }
@@ -42,8 +52,11 @@ ImageSize image_size(const Factor& factor, std::size_t panels, ImageSize single)
     if (factor.split()) single.width += 200;  // the legend at the right
     return single;
   }
-  const int columns = panel_columns(panels);
-  return {std::max(1000, 380 * columns + 330), 120 + 430 * panel_rows(panels)};
+  return {400 * panel_columns(panels) + 100 + kLegendWidth, panels_height(panels)};
+}
+
+std::string y_label(const std::string& literal) {
+  return "y_label_text = " + literal + "\nset ylabel y_label_text\n";
 }
 
 std::string legend_command(const Factor& factor) {
@@ -63,17 +76,23 @@ void draw_plots(FigureScript& script, const std::string& title, const Factor& fa
     return;
   }
   const int rows = panel_rows(levels.size());
-  const double top = 1.0 - 90.0 / (120 + 430 * rows);  // room for the figure's title
+  const double height = panels_height(levels.size());
+  const double width = script.width_pixels();
   gp << "set multiplot layout " << rows << "," << panel_columns(levels.size()) << " title "
-     << quote_gnuplot_text(title) << " font '" << script.title_font() << "' margins 0.07,0.76,"
-     << number(0.5 / (4.3 * rows)) << "," << number(top) << " spacing 0.07,"
-     << number(0.7 / (4.3 * rows)) << "\n"
-     << "set key at screen 0.78, screen " << number(top) << " left top vertical Left reverse\n";
+     << quote_gnuplot_text(title) << " font '" << script.title_font() << "' margins "
+     << number(90 / width) << "," << number(1 - kLegendWidth / width) << ","
+     << number(kBottom / height) << "," << number(1 - kTop / height) << " spacing "
+     << number(80 / width) << "," << number(kBetweenRows / height) << "\n"
+     << "set key at screen " << number(1 - (kLegendWidth - 10) / width) << ", screen "
+     << number(1 - kTop / height) << " left top vertical Left reverse\n";
   for (std::size_t k = 0; k < levels.size(); ++k) {
     const auto level = static_cast<std::size_t>(levels[k]);
     const std::string name = level < factor.levels.size() ? factor.levels[level] : "?";
     gp << "set title " << quote_gnuplot_text(factor.key + " = " + name) << "\n";
     if (k == 1) gp << "unset key\n";
+    gp << (k % static_cast<std::size_t>(panel_columns(levels.size())) == 0
+               ? "set ylabel y_label_text\n"
+               : "unset ylabel\n");
     draw(levels[k]);
   }
   gp << "unset multiplot\n";

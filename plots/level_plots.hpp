@@ -41,6 +41,10 @@ void draw_plots(FigureScript& script, const std::string& title, const Factor& fa
                 const std::vector<int>& levels, const std::string& legend,
                 const std::function<void(int level)>& draw);
 
+// The y label of a figure drawn by draw_plots (a gnuplot string literal):
+// kept in a variable so that panels show it in their first column only.
+std::string y_label(const std::string& literal);
+
 // The key command of a single plot: below the plot when it has no factor,
 // at the right (titled by the factor's key) with one entry per level.
 std::string legend_command(const Factor& factor);

@@ -13,13 +13,35 @@ namespace {
 
 using Rows = std::vector<std::vector<double>>;
 
-// The temperature axis: log scale when the temperatures span a factor 20.
+// The tics of a log axis over [low, high] (> 0): 1, 2 and 5 times the
+// powers of ten, written plainly ("0.02"), when it spans less than three
+// decades (powers alone would leave one or two labels); else the powers.
+std::string log_tics(const char* axis, double low, double high) {
+  const std::string name(axis);
+  if (!(low > 0) || !(high > low) || high >= 1000 * low)
+    return "set format " + name + " '10^{%L}'\n";
+  std::string tics;
+  for (int power = static_cast<int>(std::floor(std::log10(low)));
+       power <= static_cast<int>(std::ceil(std::log10(high))); ++power) {
+    for (const double mantissa : {1.0, 2.0, 5.0}) {
+      const double tic = mantissa * std::pow(10.0, power);
+      if (tic >= low && tic <= high) tics += (tics.empty() ? "" : ", ") + number(tic);
+    }
+  }
+  return "set format " + name + " '%g'\nset " + name + "tics (" + tics + ")\n";
+}
+
+// The temperature axis: log scale when the temperatures span a factor 3
+// (temperatures are swept on log spacings).
 void temperature_axis(Gnuplot& gp, const std::vector<Point>& points) {
   std::vector<double> x;
   for (const auto& p : points) x.push_back(p.x);
-  const bool log = wants_log_axis(x);
+  const bool log = wants_log_axis(x, 3);
   gp << "set xlabel " << markup("choice temperature {/:Italic T}  (gain units)") << "\n";
-  if (log) gp << "set logscale x\nset format x '10^{%L}'\n";
+  if (log) {
+    const auto [low, high] = std::minmax_element(x.begin(), x.end());
+    gp << "set logscale x\n" << log_tics("x", *low / 1.25, *high * 1.25);
+  }
   gp << padded_range("x", x, log);
 }
 
@@ -114,7 +136,7 @@ std::string draw_metric_against_temperature(const MetricAgainstTemperature& figu
   const ImageSize size = image_size(figure.factor, levels.size(), {1000, 700});
   FigureScript script(stem, options, size.width, size.height);
   Gnuplot& gp = script.gp();
-  gp << "set ylabel " << quote_gnuplot_text(figure.metric_name) << "\n";
+  gp << y_label(quote_gnuplot_text(figure.metric_name));
   temperature_axis(gp, runs);
   std::vector<double> y;
   for (const auto& p : runs) y.push_back(p.y);
@@ -169,10 +191,7 @@ std::string draw_z_scores_against_temperature(const ZScoresAgainstTemperature& f
   const ImageSize size = image_size(figure.factor, levels.size(), {1000, 700});
   FigureScript script(stem, options, size.width, size.height);
   Gnuplot& gp = script.gp();
-  gp << "set ylabel "
-     << quote_gnuplot_text("z-score of " + figure.metric_name + " (run against the " +
-                           figure.null_name + ")")
-     << "\n";
+  gp << y_label(quote_gnuplot_text("z-score of " + figure.metric_name + " against the null"));
   temperature_axis(gp, runs);
   std::vector<double> y = {-1.5 * figure.threshold, 1.5 * figure.threshold};
   for (const auto& p : runs) y.push_back(p.y);
@@ -180,7 +199,7 @@ std::string draw_z_scores_against_temperature(const ZScoresAgainstTemperature& f
   const std::string t = number(figure.threshold);
   const std::string reference = "'+' using 1:(-" + t + "):(" + t +
                                 ") with filledcurves ls 21 fs solid 0.5 noborder title " +
-                                quote_gnuplot_text("|z| <= " + t + " (within the null's spread)") +
+                                quote_gnuplot_text("|z| <= " + t + ": within the null's spread") +
                                 ", 0 with lines ls 20 notitle";
   const bool series = figure.factor.split() && !figure.factor.panels;
   draw_plots(script, figure.title, figure.factor, levels, legend_command(figure.factor),
@@ -226,11 +245,13 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
   const std::vector<int> levels = levels_with_points(shown);
   const bool series = figure.factor.split() && !figure.factor.panels;
   // Series of several levels at one temperature are shifted apart along x
-  // (2.5% of a decade, or of the range, per level) so their bars do not overlap.
+  // (at most 6% of a decade, or of the range, from first to last level) so
+  // their bars do not cover each other.
   const auto dodged = [&](const Point& p) {
-    if (!series) return p.x;
+    if (!series || levels.size() < 2) return p.x;
     const auto at = std::find(levels.begin(), levels.end(), p.level) - levels.begin();
-    const double shift = 0.025 * (static_cast<double>(at) - 0.5 * (levels.size() - 1.0));
+    const double step = std::min(0.015, 0.06 / static_cast<double>(levels.size() - 1));
+    const double shift = step * (static_cast<double>(at) - 0.5 * (levels.size() - 1.0));
     return log ? p.x * std::pow(10.0, shift) : p.x + shift * (high - low);
   };
   const auto bars_of = [&](int level) {
@@ -247,8 +268,8 @@ std::string draw_temperature_recovery(const TemperatureRecovery& figure, const s
   FigureScript script(stem, options, size.width, size.height);
   Gnuplot& gp = script.gp();
   gp << "set xlabel " << markup("true choice temperature {/:Italic T}  (gain units)") << "\n"
-     << "set ylabel " << markup("estimated transport temperature {/Symbol e}  (gain units)") << "\n"
-     << (log ? "set logscale xy\nset format x '10^{%L}'\nset format y '10^{%L}'\n" : "")
+     << y_label(markup("estimated transport temperature {/Symbol e}  (gain units)"))
+     << (log ? "set logscale xy\n" + log_tics("x", low, high) + log_tics("y", low, high) : "")
      << "set xrange [" << number(low) << ":" << number(high) << "]\n"
      << "set yrange [" << number(low) << ":" << number(high) << "]\n";
   if (!drawn_in_panels(figure.factor)) gp << "set size ratio -1\n";
@@ -330,8 +351,7 @@ std::string draw_distance_against_temperature(const DistanceAgainstTemperature& 
       series ? ImageSize{1300, 650} : image_size(figure.factor, levels.size(), {1000, 700});
   FigureScript script(stem, options, size.width, size.height);
   Gnuplot& gp = script.gp();
-  gp << "set ylabel "
-     << quote_gnuplot_text(figure.distance_name + " from the emergent allocation P") << "\n";
+  gp << y_label(quote_gnuplot_text(figure.distance_name + " from the emergent allocation P"));
   const bool log_y = wants_log_axis(y, 10);
   if (log_y) gp << "set logscale y\nset format y '10^{%L}'\n";
   temperature_axis(gp, all);

@@ -21,14 +21,15 @@ std::string short_number(double value, int digits = 2) {
 std::string row_words(const TrendRow& row, double z_threshold) {
   std::string words = "rho " + short_number(row.rho) + ", p ";
   words += std::isfinite(row.p_value) && row.p_value < 0.001 ? "< 0.001"
-                                                             : "= " + short_number(row.p_value);
+           : std::isfinite(row.p_value)                      ? "= " + short_number(row.p_value)
+                                                             : "n/a";
   if (row.with_z > 0) {
     words += "; |z| > " + short_number(z_threshold) + ": " + std::to_string(row.above) +
-             " above, " + std::to_string(row.below) + " below, of " + std::to_string(row.with_z);
+             " above, " + std::to_string(row.below) + " below of " + std::to_string(row.with_z);
   } else {
     words += "; " + std::to_string(row.runs) + " runs";
   }
-  if (!std::isfinite(row.slope)) words += "; slope not measurable";
+  if (!std::isfinite(row.slope)) words += "; no slope";
   return words;
 }
 
@@ -61,7 +62,7 @@ std::string draw_trend_summary(const TrendSummary& figure, const std::string& st
      << "\n"
      << padded_range("x", x, false) << "set yrange [-0.7:" << number(rows - 0.3) << "]\n"
      << "set ylabel " << quote_gnuplot_text(figure.factor.split() ? figure.factor.key : "") << "\n"
-     << "set lmargin 16\nset bmargin 5\nset rmargin at screen 0.55\nunset key\nunset mytics\nset "
+     << "set lmargin 16\nset bmargin 5\nset rmargin at screen 0.52\nunset key\nunset mytics\nset "
         "grid noytics\n"
      << "set arrow from 0, graph 0 to 0, graph 1 nohead ls 20\n";
   gp << "set ytics (";
@@ -72,7 +73,7 @@ std::string draw_trend_summary(const TrendSummary& figure, const std::string& st
   gp << ")\n";
   for (int k = 0; k < rows; ++k) {
     gp << "set label " << quote_gnuplot_text(row_words(figure.rows[k], figure.z_threshold))
-       << " at screen 0.57, first " << (rows - 1 - k) << " left\n";
+       << " at screen 0.54, first " << (rows - 1 - k) << " left\n";
   }
   gp << "plot NaN notitle";
   std::vector<std::vector<std::vector<double>>> blocks;
