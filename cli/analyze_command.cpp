@@ -198,8 +198,33 @@ int exit_code(const AllocationReport& report) {
 
 // ---- results files ----
 
+std::string percent_text(std::optional<double> share) {
+  if (!share || !std::isfinite(*share)) return "n/a";
+  std::ostringstream out;
+  out.precision(2);
+  out << 100 * *share << "%";
+  return out.str();
+}
+
+// Why a run's allocation is not the stationary one, from the settling it
+// recorded (sim/settling.hpp: settled = "false"), with the advice; empty
+// when it settled or recorded nothing (field matrices, older files).
+std::string unsettled_note(const ResultsReader& reader, const std::string& run) {
+  const Attributes attributes = reader.run_attributes(run);
+  if (attribute_text(attributes, layout::kSettled) != "false") return "";
+  return run + " had not settled when it ended (capacity error " +
+         percent_text(attribute_number(attributes, layout::kCapacityError)) +
+         " of the units in its last window, change " +
+         percent_text(attribute_number(attributes, layout::kWindowChange)) +
+         " between its last two windows, drift " +
+         percent_text(attribute_number(attributes, layout::kDriftSinceBurnIn)) +
+         " since burn-in): its allocation after burn-in is not the stationary one. Play more "
+         "rounds with a longer burn-in (dynamics.rounds, dynamics.burn_in), a larger "
+         "dynamics.price_step at low temperature, or a smaller dynamics.window; see docs/guide.md";
+}
+
 // What a run of a results file holds for the analysis: its total
-// allocation after burn-in and its scenario.
+// allocation after burn-in and its scenario, and whether it had settled.
 AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   reader.require_run(run);
   const std::string where = reader.path() + ":/" + layout::kRuns + "/" + run + "/";
@@ -213,6 +238,7 @@ AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   in.allocation = reader.read_matrix(run, layout::kTotal);
   in.agent_labels = reader.read_texts(run, layout::kAgentLabels);
   in.partner_labels = reader.read_texts(run, layout::kPartnerLabels);
+  in.not_stationary = unsettled_note(reader, run);
   // A field matrix read as shares stays shares (with its N).
   const Attributes analysis = reader.group_attributes(run, layout::kAnalysis);
   if (attribute_text(analysis, layout::kValueReading) == "shares") {
