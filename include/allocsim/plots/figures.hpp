@@ -177,7 +177,7 @@ struct MetricAgainstTemperature {
   std::vector<Point> runs;               // x = choice temperature T (> 0), y = metric
   std::vector<NullBandPoint> null_band;  // may be empty; several at one x are averaged
   std::string null_name = "null model";  // e.g. "fixed-marginal null"
-  Factor factor;
+  Factor factor = {};
 };
 std::string draw_metric_against_temperature(const MetricAgainstTemperature& figure,
                                             const std::string& stem,
@@ -193,7 +193,7 @@ struct ZScoresAgainstTemperature {
   std::string null_name;    // plain text, e.g. "curveball null model"
   std::vector<Point> runs;  // x = T, y = z-score
   double threshold = 2;     // > 0
-  Factor factor;
+  Factor factor = {};
 };
 std::string draw_z_scores_against_temperature(const ZScoresAgainstTemperature& figure,
                                               const std::string& stem,
@@ -217,7 +217,7 @@ struct TrendSummary {
   double confidence = 0.95;
   double z_threshold = 2;      // |z| above it counted as above / below the null
   std::vector<TrendRow> rows;  // top to bottom
-  Factor factor;               // panels are not used: one row per level
+  Factor factor = {};          // panels are not used: one row per level
 };
 std::string draw_trend_summary(const TrendSummary& figure, const std::string& stem,
                                const FigureOptions& options = {});
@@ -231,7 +231,7 @@ struct TemperatureRecovery {
   std::string title;
   std::vector<Point> runs;  // x = true T, y = estimated epsilon, low/high = its interval
   std::string interval_name = "95% interval";
-  Factor factor;  // series: the levels' points are shifted slightly apart along x
+  Factor factor = {};  // series: the levels' points are shifted slightly apart along x
 };
 std::string draw_temperature_recovery(const TemperatureRecovery& figure, const std::string& stem,
                                       const FigureOptions& options = {});
@@ -246,7 +246,7 @@ struct DistanceAgainstTemperature {
   std::string distance_name = "KL divergence";  // plain text; the y label
   std::vector<Point> to_entropic;               // x = T
   std::vector<Point> to_exact;                  // x = T
-  Factor factor;
+  Factor factor = {};
 };
 std::string draw_distance_against_temperature(const DistanceAgainstTemperature& figure,
                                               const std::string& stem,
