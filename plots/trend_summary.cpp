@@ -29,7 +29,10 @@ std::string row_words(const TrendRow& row, double z_threshold) {
   } else {
     words += "; " + std::to_string(row.runs) + " runs";
   }
-  if (!std::isfinite(row.slope)) words += "; no slope";
+  if (!std::isfinite(row.slope))
+    words += "; no slope";
+  else if (!std::isfinite(row.low) || !std::isfinite(row.high))
+    words += "; no interval (needs 2 runs at each x)";
   return words;
 }
 
