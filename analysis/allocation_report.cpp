@@ -388,8 +388,8 @@ JsonObject allocation_report_json(const AllocationReport& r) {
   if (!o.note.empty()) json.add("note", o.note);
   json.add("gains", o.has_gains);
   JsonObject temperature = temperature_json(r.temperature);
-  temperature.add("stationary", r.not_stationary.empty());
-  if (!r.not_stationary.empty()) temperature.add("not_stationary", r.not_stationary);
+  if (!r.not_stationary.empty())
+    temperature.add("stationary", false).add("not_stationary", r.not_stationary);
   json.add("temperature", temperature);
   add_couplings_json(r, json);
   json.add("structure", structure_json(r));

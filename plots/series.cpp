@@ -115,6 +115,16 @@ void send(Gnuplot& gp, const SeriesPlot& plot) {
   for (const auto& block : plot.data) gp.send1d(block);
 }
 
+// A legend entry for the lines through the means, when a level has several runs at one x.
+std::string means_entry(const std::vector<Point>& sorted, const std::vector<int>& levels) {
+  const bool replicates = std::any_of(levels.begin(), levels.end(), [&](int level) {
+    return has_replicates(points_of_level(sorted, level));
+  });
+  return replicates ? ", keyentry with lines lc rgb '#333333' lw 2 title " +
+                          quote_gnuplot_text("line: mean over the runs at each T")
+                    : "";
+}
+
 // The y range shared by panels: the values with a margin.
 std::string shared_y_range(const Factor& factor, const std::vector<double>& y, bool log = false) {
   return drawn_in_panels(factor) ? padded_range("y", y, log) : "";
@@ -213,6 +223,7 @@ std::string draw_z_scores_against_temperature(const ZScoresAgainstTemperature& f
                  for (const int l : levels)
                    add_series(plot, points_of_level(runs, l), level_style(l),
                               level_title(figure.factor, l));
+                 plot.elements += means_entry(runs, levels);
                }
                send(gp, plot);
              });

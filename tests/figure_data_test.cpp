@@ -126,7 +126,7 @@ TEST_CASE("swept keys are the experiment keys that take two or more values") {
 }
 
 TEST_CASE(
-    "levels of a text key keep their first-seen order; a run without the key is '(not set)'") {
+    "levels of a text key keep their first-seen order, a run without the key is '(not set)'") {
   std::vector<RunRecord> runs = {sweep_run(0.1, "uniform", 1, 0, 1),
                                  sweep_run(0.1, "zipf", 1, 0, 1),
                                  sweep_run(0.2, "lognormal", 1, 0, 1),

@@ -46,7 +46,7 @@ struct AllocationInput {
   // had not settled: ..."), with the advice; empty when nothing says so. The
   // report says it first, and flags the temperature as fitted to a
   // non-stationary allocation (JSON: temperature.stationary = false and
-  // temperature.not_stationary = this text).
+  // temperature.not_stationary = this text, both only then).
   std::string not_stationary;
 };
 
