@@ -181,6 +181,7 @@ std::string draw_metric_against_temperature(const MetricAgainstTemperature& figu
           plot.data.push_back(band);
           any_band = true;
         }
+        plot.elements += means_entry(runs, levels);
         if (any_band)
           plot.elements += ", keyentry with lines ls 20 title " +
                            quote_gnuplot_text("dashed: " + figure.null_name + " mean");
@@ -323,8 +324,8 @@ void draw_distance_series(FigureScript& script, const DistanceAgainstTemperature
                           const std::vector<int>& levels) {
   Gnuplot& gp = script.gp();
   gp << "set multiplot layout 1,2 title " << quote_gnuplot_text(figure.title) << " font '"
-     << script.title_font() << "' margins 0.07,0.80,0.12,0.87 spacing 0.08\n"
-     << "set key at screen 0.82, screen 0.87 left top vertical Left reverse title "
+     << script.title_font() << "' margins 0.07,0.78,0.12,0.87 spacing 0.08\n"
+     << "set key at screen 0.79, screen 0.87 left top vertical Left reverse title "
      << quote_gnuplot_text(figure.factor.key) << " left\n";
   const std::vector<std::pair<std::string, const std::vector<Point>*>> panels = {
       {"to the entropic coupling at the estimated {/Symbol e}", &entropic},
@@ -359,7 +360,7 @@ std::string draw_distance_against_temperature(const DistanceAgainstTemperature& 
   const std::vector<int> levels = levels_with_points(all);
   const bool series = figure.factor.split() && !figure.factor.panels;
   const ImageSize size =
-      series ? ImageSize{1300, 650} : image_size(figure.factor, levels.size(), {1000, 700});
+      series ? ImageSize{1400, 650} : image_size(figure.factor, levels.size(), {1000, 700});
   FigureScript script(stem, options, size.width, size.height);
   Gnuplot& gp = script.gp();
   gp << y_label(quote_gnuplot_text(figure.distance_name + " from the emergent allocation P"));

@@ -419,7 +419,7 @@ TEST_CASE("figures against temperature draw one series or one panel per level", 
                                                             {1680, 960},
                                                             {1200, 650}}
                : std::vector<std::pair<unsigned, unsigned>>{
-                     {1200, 700}, {1200, 700}, {1100, 800}, {1300, 650}, {1200, 650}};
+                     {1200, 700}, {1200, 700}, {1100, 800}, {1400, 650}, {1200, 650}};
     for (std::size_t k = 0; k < images.size(); ++k) {
       INFO(images[k]);
       const PngSize png = read_png_size(images[k]);
