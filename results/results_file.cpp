@@ -8,6 +8,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/results/layout.hpp"
 #include "hdf5_io.hpp"
 #include "run_group.hpp"
@@ -19,15 +20,17 @@ std::string runs_path(const std::string& name) {
   return std::string("/") + layout::kRuns + "/" + name;
 }
 
-// Flushes and closes `file`, then renames `temporary` onto `path`; a
+// Flushes and closes `file`, then renames `temporary` onto `target` (the
+// file `path` leads to); a
 // WriteError naming `path` and the cause otherwise (the caller's destructor
 // abandons the file and removes the temporary).
-void close_and_rename(H5::H5File& file, const std::string& temporary, const std::string& path) {
+void close_and_rename(H5::H5File& file, const std::string& temporary, const std::string& target,
+                      const std::string& path) {
   write_guarded(path, [&] {
     file.flush(H5F_SCOPE_GLOBAL);
     file.close();
   });
-  if (std::rename(temporary.c_str(), path.c_str()) != 0) {
+  if (std::rename(temporary.c_str(), target.c_str()) != 0) {
     const int error = errno;
     std::remove(temporary.c_str());
     throw WriteError(path, std::strerror(error));
@@ -157,7 +160,8 @@ struct ResultsFile::File {
 ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
                          const std::string& tool_version)
     : path_(std::move(path)),
-      temporary_(temporary_name_for(path_)),
+      target_(require_regular_output(path_, path_).path),
+      temporary_(temporary_name_for(target_)),
       file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   try {
@@ -219,7 +223,7 @@ void ResultsFile::write_summary(const SummaryTable& table) {
 }
 
 void ResultsFile::commit() {
-  close_and_rename(file_->file, temporary_, path_);
+  close_and_rename(file_->file, temporary_, target_, path_);
   committed_ = true;
 }
 
@@ -231,11 +235,12 @@ struct ResultsUpdate::File {
 
 ResultsUpdate::ResultsUpdate(std::string path)
     : path_(std::move(path)),
-      temporary_(temporary_name_for(path_)),
+      target_(require_regular_output(path_, path_).path),
+      temporary_(temporary_name_for(target_)),
       file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   std::error_code error;
-  std::filesystem::copy_file(path_, temporary_, std::filesystem::copy_options::overwrite_existing,
+  std::filesystem::copy_file(target_, temporary_, std::filesystem::copy_options::overwrite_existing,
                              error);
   if (error) {
     // The file was read before: what fails is writing its copy.
@@ -259,7 +264,7 @@ RunWriter ResultsUpdate::run(const std::string& name) {
 }
 
 void ResultsUpdate::commit() {
-  close_and_rename(file_->file, temporary_, path_);
+  close_and_rename(file_->file, temporary_, target_, path_);
   committed_ = true;
 }
 

@@ -89,6 +89,9 @@ class AllocationRecorder : public SnapshotSink {
   std::unique_ptr<State> state_;
 };
 
+// The target follows the rules of core/output_file.hpp: a symlink is
+// followed (its target is written, the link stays); anything but a regular
+// file or nothing is refused (InputError).
 class ResultsFile {
  public:
   // Throws InputError naming `path` when its folder does not exist or cannot
@@ -114,7 +117,7 @@ class ResultsFile {
 
  private:
   struct File;
-  std::string path_, temporary_;
+  std::string path_, target_, temporary_;
   std::unique_ptr<File> file_;
   bool committed_ = false;
 };
@@ -134,7 +137,7 @@ class ResultsUpdate {
 
  private:
   struct File;
-  std::string path_, temporary_;
+  std::string path_, target_, temporary_;
   std::unique_ptr<File> file_;
   bool committed_ = false;
 };
