@@ -11,6 +11,7 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
@@ -178,6 +179,15 @@ void BenchmarkOptions::validate() const {
   if (replicates < 1) throw InputError("--replicates", "must be at least 1");
   if (total_cases(*this, design_cells(*this)) > 1000000)
     throw InputError(cases > 0 ? "--cases" : "--replicates", "more than a million cases");
+  // Dense agents x partners matrices one case holds at once at the largest
+  // shape: gains, the allocation, and a simulation's (8) or the entropic
+  // coupling's working matrices (an estimate).
+  constexpr double kCaseMatrices = 10;
+  require_memory(dense_matrix_bytes(static_cast<double>(shape.agents.high),
+                                    static_cast<double>(shape.partners.high), kCaseMatrices),
+                 "a case of " + std::to_string(shape.agents.high) + " x " +
+                     std::to_string(shape.partners.high) + " cells",
+                 shape.where, "use fewer agents or partners");
 }
 
 std::vector<BenchmarkCase> plan_benchmark_set(const BenchmarkOptions& options) {
