@@ -119,6 +119,14 @@ void make_folder(const std::string& folder) {
 
 }  // namespace
 
+const std::vector<std::string>& report_export_names() {
+  static const std::vector<std::string> names = {
+      "matrix_nested.csv",     "links_nested.csv",   "agents.csv",
+      "partners.csv",          "left_out.csv",       "coupling_exact.csv",
+      "coupling_entropic.csv", "null_comparison.csv"};
+  return names;
+}
+
 std::vector<std::string> export_report(const AllocationReport& r, const std::string& folder) {
   make_folder(folder);
   Exporter e(r, folder);

@@ -164,6 +164,7 @@ ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
       temporary_(temporary_name_for(target_)),
       file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
+  require_not_an_input(target_, path_);
   try {
     errno = 0;
     file_->file = H5::H5File(temporary_, H5F_ACC_TRUNC);

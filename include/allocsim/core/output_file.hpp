@@ -43,6 +43,15 @@ bool same_file(const std::string& a, const std::string& b);
 void require_distinct(const std::string& output, const std::string& output_label,
                       const std::vector<std::pair<std::string, std::string>>& others);
 
+// Remembers `path` (a regular file) as an input read by this process.
+// Thread-safe.
+void remember_input(const std::string& path);
+
+// Throws InputError(label) when `output` is the same file as an input
+// remembered by remember_input, e.g. "res.h5: is also an input of this
+// command (res.h5); it would be overwritten: choose another name".
+void require_not_an_input(const std::string& output, const std::string& label);
+
 // Removes "<path>.tmp-<pid>" beside `path` whose process no longer runs;
 // returns how many were removed.
 int remove_orphan_temporaries(const std::string& path);
