@@ -187,6 +187,30 @@ std::string write_failure_cause(const std::string& path, const std::string& deta
   return detail;
 }
 
+NewFolder::NewFolder(const std::string& folder, const std::string& label) {
+  std::error_code error;
+  for (fs::path missing = fs::absolute(folder, error).lexically_normal();
+       !missing.empty() && !fs::exists(missing, error) && missing != missing.parent_path();
+       missing = missing.parent_path()) {
+    if (!missing.filename().empty()) created_.push_back(missing.string());
+  }
+  fs::create_directories(folder, error);
+  if (error || !fs::is_directory(folder)) {
+    created_.clear();
+    throw InputError(label, (label == folder ? std::string() : folder + ": ") +
+                                "cannot be created as a folder (" +
+                                (error ? error.message() : std::string("a file has that name")) +
+                                ")");
+  }
+}
+
+NewFolder::~NewFolder() {
+  std::error_code error;
+  for (const auto& folder : created_) {
+    if (!fs::is_empty(folder, error) || !fs::remove(folder, error)) break;
+  }
+}
+
 OutputLock::OutputLock(const std::string& path) : lock_path_(follow_links(path) + ".lock") {
   for (int attempt = 0; attempt < 10; ++attempt) {
     fd_ = ::open(lock_path_.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);

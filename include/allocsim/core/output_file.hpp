@@ -64,6 +64,23 @@ int remove_orphan_temporaries_in(const std::string& folder);
 // `path` has less than 1 MB free, otherwise `detail`.
 std::string write_failure_cause(const std::string& path, const std::string& detail, int error);
 
+// A folder made for outputs: created with its missing parents; when the
+// object is destroyed before keep() (a failed write), the folders it
+// created are removed again if they are still empty, so a failure leaves
+// nothing behind. Throws InputError(label) when the folder cannot be made
+// or a file has its name.
+class NewFolder {
+ public:
+  NewFolder(const std::string& folder, const std::string& label);
+  ~NewFolder();
+  NewFolder(const NewFolder&) = delete;
+  NewFolder& operator=(const NewFolder&) = delete;
+  void keep() { created_.clear(); }
+
+ private:
+  std::vector<std::string> created_;  // innermost first
+};
+
 // An advisory lock (flock) on "<path>.lock", held while the object lives;
 // the lock file holds the holder's pid and start time and is removed on
 // release. A process killed by SIGKILL releases its lock (the kernel drops
