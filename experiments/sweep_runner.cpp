@@ -219,9 +219,11 @@ std::string run_count_difference(const SweepPlan& plan, const ResultsReader& rea
   }
   for (const auto& [name, values] : now) {
     if (name == "output.file" || there[name].size() == values.size()) continue;
-    const std::string key = name == layout::kReplicate ? std::string("sweep.replicates")
-                            : values.size() > 1        ? "sweep." + name
-                                                       : name;
+    if (name == layout::kReplicate) {
+      return "sweep.replicates is " + std::to_string(there[name].size()) + " there, " +
+             std::to_string(values.size()) + " now";
+    }
+    const std::string key = values.size() > 1 ? "sweep." + name : name;
     return key + " has " + listed_values(there[name]) + " there, " + listed_values(values) + " now";
   }
   return "it holds " + std::to_string(runs.size()) + " runs, this experiment has " +
