@@ -173,6 +173,12 @@ void BenchmarkOptions::validate() const {
   const double least_units =
       units.drawn() ? units.low : *std::min_element(units.values.begin(), units.values.end());
   if (least_units < 1) throw InputError("--units", "'" + units.text + "' allows fewer than 1 unit");
+  // Counts are whole numbers held exactly (doubles are exact to 2^53).
+  constexpr double kMostUnits = 1e15;
+  const double most_units =
+      units.drawn() ? units.high : *std::max_element(units.values.begin(), units.values.end());
+  if (most_units > kMostUnits)
+    throw InputError("--units", "'" + units.text + "' allows more than 1e15 units per case");
   if (budgets.empty()) throw InputError("--budgets", "name at least one law");
   if (capacities.empty()) throw InputError("--capacities", "name at least one law");
   if (cases < 0) throw InputError("--cases", "must be >= 0 (0: one per design cell and replicate)");
