@@ -9,6 +9,7 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/results/results_file.hpp"
 #include "commands.hpp"
+#include "options.hpp"
 
 namespace {
 
@@ -48,7 +49,8 @@ int run_command(const allocsim::cli::Command& command, const std::string& name,
     std::string message = e.what();
     const std::string prefix = "allocsim " + name + ": ";
     if (message.rfind(prefix, 0) == 0) message.erase(0, prefix.size());
-    std::cerr << "allocsim " << name << ": error: " << message << "\n";
+    std::cerr << "allocsim " << name << ": error: " << allocsim::cli::with_option_names(message)
+              << "\n";
     return kExitUsage;
   } catch (const std::exception& e) {
     std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
