@@ -161,6 +161,26 @@ void write_exports(const AllocationReport& report, const po::variables_map& vm) 
             << "\n";
 }
 
+// Refuses, before any analysis, a --save or an export of --export-dir that
+// is one of the input files.
+void require_outputs_apart_from_inputs(const po::variables_map& vm) {
+  std::vector<std::pair<std::string, std::string>> inputs;
+  for (const char* option : {"allocation", "gains", "access", "row-traits", "column-traits"}) {
+    if (vm.count(option))
+      inputs.emplace_back(std::string("--") + option, vm[option].as<std::string>());
+  }
+  if (vm.count("features")) {
+    for (const auto& path : vm["features"].as<std::vector<std::string>>())
+      inputs.emplace_back("--features", path);
+  }
+  if (vm.count("save")) require_distinct(vm["save"].as<std::string>(), "--save", inputs);
+  if (!vm.count("export-dir")) return;
+  if (vm.count("save")) inputs.emplace_back("--save", vm["save"].as<std::string>());
+  const std::filesystem::path folder = vm["export-dir"].as<std::string>();
+  for (const std::string& name : report_export_names())
+    require_distinct((folder / name).string(), "--export-dir", inputs);
+}
+
 // `--save obs.h5`: a results file with one run holding the field matrix, its
 // labels, the gains when given, and the analysis, like a simulated run.
 void save_results(const AllocationInput& in, const AllocationReport& report,
@@ -360,6 +380,7 @@ int analyze_command(const Arguments& args) {
   }
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
+  require_outputs_apart_from_inputs(vm);
   const AllocationInput input = read_csv_input(vm);
   const AllocationReport report = analyze_allocation(input, analyze_options);
   const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
