@@ -1,5 +1,6 @@
 #include "allocsim/analysis/gains_reconstruction.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <iomanip>
 #include <limits>
@@ -20,6 +21,8 @@ std::vector<std::string> kept_labels(const std::vector<std::string>& labels,
                       : std::string(word) + " " + std::to_string(k + 1));
   return out;
 }
+
+std::string number(double x, int precision = 4);
 
 JsonObject scores_json(const Matrix& scores, const std::vector<std::string>& labels) {
   JsonObject out;
@@ -74,7 +77,42 @@ JsonObject latent_json(const LatentAssociationResult& latent, const GainsReconst
   return out;
 }
 
-std::string number(double x, int precision = 4) {
+// Characters shown for UTF-8 text (continuation bytes do not count).
+std::size_t display_width(const std::string& text) {
+  std::size_t width = 0;
+  for (const char c : text) width += (static_cast<unsigned char>(c) & 0xC0) != 0x80;
+  return width;
+}
+
+// `text` followed by spaces up to `width` shown characters (at least one space).
+std::string padded(const std::string& text, std::size_t width) {
+  return text + std::string(width > display_width(text) ? width - display_width(text) : 0, ' ') +
+         " ";
+}
+
+std::size_t widest(const std::vector<std::string>& labels, std::size_t at_least) {
+  std::size_t width = at_least;
+  for (const std::string& label : labels) width = std::max(width, display_width(label));
+  return width;
+}
+
+// One line per label: the label padded to the longest, then one number per
+// dimension in columns headed "dimension 1", "dimension 2", ...
+void print_scores(std::ostream& out, const char* what, const Matrix& scores,
+                  const std::vector<std::string>& labels) {
+  const std::size_t width = widest(labels, 5);
+  out << "    " << padded(what + std::string(" scores"), width + 2);
+  for (Eigen::Index k = 0; k < scores.cols(); ++k)
+    out << std::setw(12) << "dimension " + std::to_string(k + 1);
+  out << "\n";
+  for (Eigen::Index i = 0; i < scores.rows(); ++i) {
+    out << "      " << padded(labels[static_cast<std::size_t>(i)], width);
+    for (Eigen::Index k = 0; k < scores.cols(); ++k) out << std::setw(12) << number(scores(i, k));
+    out << "\n";
+  }
+}
+
+std::string number(double x, int precision) {
   if (std::isnan(x)) return "n/a";
   if (std::isinf(x)) return x > 0 ? "infinity" : "-infinity";
   std::ostringstream out;
@@ -137,12 +175,12 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
     const GainsFitResult& f = *report.features;
     out << "  features: " << to_string(f.status) << " after " << f.iterations << " Newton steps"
         << (f.message.empty() ? "" : ": " + f.message) << "\n";
+    const std::size_t width = widest(f.names, 8);
     for (Eigen::Index k = 0; k < f.theta_over_epsilon.size(); ++k)
-      out << "    " << std::left << std::setw(24) << f.names[static_cast<std::size_t>(k)]
-          << std::right << " weight " << number(f.theta_over_epsilon(k)) << "  (se "
-          << number(f.standard_errors(k)) << "; " << number(100 * f.confidence, 3)
-          << "% likelihood-ratio interval " << number(f.ci_low(k)) << " to " << number(f.ci_high(k))
-          << ")\n";
+      out << "    " << padded(f.names[static_cast<std::size_t>(k)], width) << "weight "
+          << number(f.theta_over_epsilon(k)) << "  (se " << number(f.standard_errors(k)) << "; "
+          << number(100 * f.confidence, 3) << "% likelihood-ratio interval " << number(f.ci_low(k))
+          << " to " << number(f.ci_high(k)) << ")\n";
     out << "    deviance " << number(f.fit.deviance, 6) << " on " << f.fit.degrees_of_freedom
         << " degrees of freedom\n";
   }
@@ -151,19 +189,8 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
     out << "  latent: " << l.brief() << "\n";
     if (l.rank > 0) {
       out << "    " << strength_sentence(l) << "\n";
-      const auto scores = [&](const char* what, const Matrix& s,
-                              const std::vector<std::string>& labels) {
-        out << "    " << what << " scores (dimension 1" << (s.cols() > 1 ? ", 2, ..." : "")
-            << "):\n";
-        for (Eigen::Index i = 0; i < s.rows(); ++i) {
-          out << "      " << std::left << std::setw(20) << labels[static_cast<std::size_t>(i)]
-              << std::right;
-          for (Eigen::Index k = 0; k < s.cols(); ++k) out << " " << std::setw(9) << number(s(i, k));
-          out << "\n";
-        }
-      };
-      scores("row", l.row_scores, report.row_labels);
-      scores("column", l.column_scores, report.column_labels);
+      print_scores(out, "row", l.row_scores, report.row_labels);
+      print_scores(out, "column", l.column_scores, report.column_labels);
     }
   }
   if (report.models.size() > 2) {
