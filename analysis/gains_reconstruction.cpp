@@ -165,6 +165,14 @@ JsonObject gains_reconstruction_json(const GainsReconstructionReport& report) {
   if (report.features) out.add("features", features_json(*report.features));
   if (report.latent) out.add("latent", latent_json(*report.latent, report));
   out.add("models", model_table_json(report.models));
+  if (report.recovery) {
+    JsonObject recovery;
+    recovery.add("latent_correlation", report.recovery->latent_correlation)
+        .add("latent_slope", report.recovery->latent_slope)
+        .add("features_correlation", report.recovery->features_correlation)
+        .add("features_slope", report.recovery->features_slope);
+    out.add("recovery", recovery);
+  }
   return out;
 }
 
@@ -202,22 +210,64 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
   }
 }
 
-double correlation_after_row_column_effects(const ObservedAllocation& o, const Matrix& a,
-                                            const Matrix& b) {
+namespace {
+
+// Sums of squares and products of the residuals of a and b (after row and
+// column constants) over the allowed cells, about their means.
+struct ResidualMoments {
+  double saa = 0, sbb = 0, sab = 0;
+};
+
+ResidualMoments residual_moments(const ObservedAllocation& o, const Matrix& a, const Matrix& b) {
   const Matrix allowed = allowed_cells_of(o);
   const Matrix ra = additive_residual(a, allowed), rb = additive_residual(b, allowed);
   const double cells = allowed.sum();
   const double ma = ra.sum() / cells, mb = rb.sum() / cells;
-  double saa = 0, sbb = 0, sab = 0;
+  ResidualMoments m;
   for (Eigen::Index k = 0; k < ra.size(); ++k) {
     if (!(allowed.data()[k] > 0)) continue;
     const double x = ra.data()[k] - ma, y = rb.data()[k] - mb;
-    saa += x * x;
-    sbb += y * y;
-    sab += x * y;
+    m.saa += x * x;
+    m.sbb += y * y;
+    m.sab += x * y;
   }
-  if (!(saa > 0 && sbb > 0)) return std::numeric_limits<double>::quiet_NaN();
-  return sab / std::sqrt(saa * sbb);
+  return m;
+}
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+}  // namespace
+
+double correlation_after_row_column_effects(const ObservedAllocation& o, const Matrix& a,
+                                            const Matrix& b) {
+  const ResidualMoments m = residual_moments(o, a, b);
+  if (!(m.saa > 0 && m.sbb > 0)) return kNaN;
+  return m.sab / std::sqrt(m.saa * m.sbb);
+}
+
+Matrix fitted_feature_gains(const ObservedAllocation& o, const GainsReconstructionInput& input,
+                            const GainsFitResult& fit) {
+  Matrix sum = Matrix::Zero(o.shares.rows(), o.shares.cols());
+  for (std::size_t k = 0; k < input.features.size(); ++k)
+    sum += fit.theta_over_epsilon(static_cast<Eigen::Index>(k)) *
+           restrict_to_kept(input.features[k], o);
+  return sum;
+}
+
+GainsRecovery gains_recovery(const ObservedAllocation& o, const GainsReconstructionInput& input,
+                             const GainsReconstructionReport& report, const Matrix& truth) {
+  GainsRecovery recovery;
+  const auto measure = [&](const Matrix& reconstructed, double& correlation, double& slope) {
+    const ResidualMoments m = residual_moments(o, reconstructed, truth);
+    correlation = m.saa > 0 && m.sbb > 0 ? m.sab / std::sqrt(m.saa * m.sbb) : kNaN;
+    slope = m.sbb > 0 ? m.sab / m.sbb : kNaN;
+  };
+  if (report.latent && report.latent->rank > 0)
+    measure(report.latent->association, recovery.latent_correlation, recovery.latent_slope);
+  if (report.features)
+    measure(fitted_feature_gains(o, input, *report.features), recovery.features_correlation,
+            recovery.features_slope);
+  return recovery;
 }
 
 }  // namespace allocsim

@@ -174,6 +174,7 @@ void write_exports(const AllocationReport& report,
 // `--save obs.h5`: a results file with one run holding the field matrix, its
 // labels, the gains when given, and the analysis, like a simulated run.
 void save_results(const AllocationInput& in, const AllocationReport& report,
+                  const std::optional<GainsReconstructionReport>& reconstruction,
                   const po::variables_map& vm) {
   if (!vm.count("save")) return;
   const std::string path = vm["save"].as<std::string>();
@@ -197,9 +198,12 @@ void save_results(const AllocationInput& in, const AllocationReport& report,
     run.write_scenario(scenario);
   }
   run.write_report(report);
+  if (reconstruction) run.write_gains_reconstruction(*reconstruction, report.observed);
   run.set_text(layout::kStatus, layout::kStatusComplete);
   file.commit();
-  std::cerr << "saved the matrix and its analysis as run " << run_name(0) << " of " << path << "\n";
+  std::cerr << "saved the matrix and its analysis"
+            << (reconstruction ? " (with the gains reconstruction)" : "") << " as run "
+            << run_name(0) << " of " << path << "\n";
 }
 
 int exit_code(const AllocationReport& report) {
@@ -350,7 +354,7 @@ int analyze_command(const Arguments& args) {
   const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
   print_report(report, reconstruction, vm);
   write_exports(report, reconstruction, vm);
-  save_results(input, report, vm);
+  save_results(input, report, reconstruction, vm);
   return exit_code(report);
 }
 

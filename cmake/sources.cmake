@@ -55,6 +55,8 @@ allocsim_layer(results
   SOURCES
     results/hdf5_io.cpp
     results/recorder.cpp
+    results/reconstruction_reader.cpp
+    results/reconstruction_writer.cpp
     results/report_writer.cpp
     results/results_file.cpp
     results/results_reader.cpp
