@@ -87,6 +87,7 @@ allocsim_layer(plots
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/latent_scores.cpp
     plots/null_histogram.cpp
     plots/results_figures.cpp
     plots/ordering.cpp
