@@ -1,5 +1,7 @@
 #include "allocsim/experiments/experiment.hpp"
 
+#include "allocsim/experiments/analysis_settings.hpp"
+
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -74,6 +76,7 @@ SimulationSettings simulation_settings(const ExperimentValues& values) {
   with_key_location(values, [&] {
     settings.scenario.validate();
     settings.dynamics.validate();
+    check_reconstruction_keys(values);
   });
   return settings;
 }

@@ -97,6 +97,7 @@ void RunWriter::write_gains_reconstruction(const GainsReconstructionReport& repo
     if (report.latent) {
       write_latent(reconstruction, *report.latent, observed);
       set_integer_attribute(analysis, layout::kLatentRank, report.latent->rank);
+      set_integer_attribute(analysis, layout::kLatentConverged, report.latent->converged() ? 1 : 0);
       set_number_attribute(
           analysis, layout::kLatentStrength1,
           report.latent->strengths.size() > 0 ? report.latent->strengths(0) : std::nan(""));

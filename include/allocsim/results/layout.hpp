@@ -168,10 +168,11 @@ inline constexpr char kFeatureIntervalHigh[] = "analysis/reconstruction/features
 inline constexpr char kFeatureCoupling[] = "analysis/reconstruction/features/coupling";
 inline constexpr char kFeaturesStatus[] = "features_status";
 // Attributes of the analysis group (so /summary columns of a sweep): the
-// latent rank fitted (chosen by BIC with auto), and how well the
+// latent rank fitted (chosen by BIC with auto), whether that fit converged, and how well the
 // reconstruction recovers the simulated gains / T after row and column
 // effects (analysis/gains_reconstruction.hpp, GainsRecovery).
 inline constexpr char kLatentRank[] = "latent_rank";
+inline constexpr char kLatentConverged[] = "latent_converged";  // 1 or 0
 inline constexpr char kLatentStrength1[] = "latent_strength_1";
 inline constexpr char kLatentGainsCorrelation[] = "latent_gains_correlation";
 inline constexpr char kLatentGainsSlope[] = "latent_gains_slope";
