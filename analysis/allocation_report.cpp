@@ -229,8 +229,15 @@ WeightConcentration weight_concentration(const Matrix& shares) {
   return c;
 }
 
+void AllocationAnalysisOptions::validate() const {
+  temperature.validate();
+  binarize.validate();
+  if (nulls) nulls->validate();
+}
+
 AllocationReport analyze_allocation(const AllocationInput& in,
                                     const AllocationAnalysisOptions& options) {
+  options.validate();
   AllocationReport report;
   report.observed = observe_allocation(in.allocation, in.gains, in.access, in.sources, in.reading);
   report.agent_labels = in.agent_labels;

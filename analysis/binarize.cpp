@@ -3,13 +3,11 @@
 #include <cmath>
 #include <sstream>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
 namespace {
-
-constexpr BinarizeRule kAllRules[] = {BinarizeRule::positive, BinarizeRule::row_share,
-                                      BinarizeRule::min_count, BinarizeRule::revealed_advantage};
 
 void check_allocation(const Matrix& allocation) {
   for (Eigen::Index i = 0; i < allocation.rows(); ++i) {
@@ -32,28 +30,19 @@ std::string format_threshold(double t) {
 
 }  // namespace
 
-std::string to_string(BinarizeRule rule) {
-  switch (rule) {
-    case BinarizeRule::positive:
-      return "positive";
-    case BinarizeRule::row_share:
-      return "row-share";
-    case BinarizeRule::min_count:
-      return "min-count";
-    case BinarizeRule::revealed_advantage:
-      return "revealed-advantage";
-  }
-  return "unknown";
-}
+constexpr EnumWord<BinarizeRule> kBinarizeRuleWords[] = {
+    {BinarizeRule::positive, "positive"},
+    {BinarizeRule::row_share, "row-share"},
+    {BinarizeRule::min_count, "min-count"},
+    {BinarizeRule::revealed_advantage, "revealed-advantage"}};
+
+std::string to_string(BinarizeRule value) { return word_of(value, kBinarizeRuleWords); }
 
 BinarizeRule binarize_rule_from_string(const std::string& text) {
-  std::string words;
-  for (BinarizeRule rule : kAllRules) {
-    if (to_string(rule) == text) return rule;
-    words += (words.empty() ? "" : ", ") + to_string(rule);
-  }
-  throw InputError("binarize", "'" + text + "' is not one of " + words);
+  return value_of(text, kBinarizeRuleWords, "binarize");
 }
+
+std::vector<std::string> binarize_rule_words() { return words_of(kBinarizeRuleWords); }
 
 double default_threshold(BinarizeRule rule) {
   switch (rule) {

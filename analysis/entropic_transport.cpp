@@ -9,6 +9,7 @@
 
 #include "allocsim/analysis/exact_transport.hpp"
 #include "allocsim/analysis/thread_team.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -374,24 +375,15 @@ void EntropicOptions::validate() const {
   if (!(parallel_cells >= 0)) throw InputError("parallel_cells", "must be >= 0");
 }
 
-std::string to_string(EntropicStatus status) {
-  switch (status) {
-    case EntropicStatus::converged:
-      return "converged";
-    case EntropicStatus::not_converged:
-      return "not_converged";
-    case EntropicStatus::infeasible:
-      return "infeasible";
-  }
-  return "unknown";
-}
+constexpr EnumWord<EntropicStatus> kEntropicStatusWords[] = {
+    {EntropicStatus::converged, "converged"},
+    {EntropicStatus::not_converged, "not_converged"},
+    {EntropicStatus::infeasible, "infeasible"}};
+
+std::string to_string(EntropicStatus value) { return word_of(value, kEntropicStatusWords); }
 
 EntropicStatus entropic_status_from_string(const std::string& text) {
-  for (auto s :
-       {EntropicStatus::converged, EntropicStatus::not_converged, EntropicStatus::infeasible}) {
-    if (to_string(s) == text) return s;
-  }
-  throw InputError("status", "'" + text + "' is not one of converged, not_converged, infeasible");
+  return value_of(text, kEntropicStatusWords, "status");
 }
 
 double gain_range(const TransportProblem& problem) {

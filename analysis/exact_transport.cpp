@@ -14,6 +14,7 @@
 #include <sstream>
 #include <vector>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -514,20 +515,13 @@ void ExactOptions::validate() const {
   }
 }
 
-std::string to_string(ExactStatus status) {
-  switch (status) {
-    case ExactStatus::optimal:
-      return "optimal";
-    case ExactStatus::infeasible:
-      return "infeasible";
-  }
-  return "unknown";
-}
+constexpr EnumWord<ExactStatus> kExactStatusWords[] = {{ExactStatus::optimal, "optimal"},
+                                                       {ExactStatus::infeasible, "infeasible"}};
+
+std::string to_string(ExactStatus value) { return word_of(value, kExactStatusWords); }
 
 ExactStatus exact_status_from_string(const std::string& text) {
-  if (text == "optimal") return ExactStatus::optimal;
-  if (text == "infeasible") return ExactStatus::infeasible;
-  throw InputError("exact status", "'" + text + "' is not one of: optimal, infeasible");
+  return value_of(text, kExactStatusWords, "exact status");
 }
 
 std::string ExactResult::brief() const {

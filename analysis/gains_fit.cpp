@@ -7,6 +7,7 @@
 #include "allocsim/analysis/additive_residual.hpp"
 #include "allocsim/analysis/marginal_newton.hpp"
 #include "allocsim/analysis/temperature.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -262,14 +263,13 @@ void GainsFitOptions::validate() const {
   if (!(confidence > 0 && confidence < 1)) throw InputError("confidence", "must be in (0, 1)");
 }
 
-std::string to_string(GainsFitStatus status) {
-  return status == GainsFitStatus::converged ? "converged" : "not_converged";
-}
+constexpr EnumWord<GainsFitStatus> kGainsFitStatusWords[] = {
+    {GainsFitStatus::converged, "converged"}, {GainsFitStatus::not_converged, "not_converged"}};
+
+std::string to_string(GainsFitStatus value) { return word_of(value, kGainsFitStatusWords); }
 
 GainsFitStatus gains_fit_status_from_string(const std::string& text) {
-  if (text == "converged") return GainsFitStatus::converged;
-  if (text == "not_converged") return GainsFitStatus::not_converged;
-  throw InputError("status", "'" + text + "' is not one of converged, not_converged");
+  return value_of(text, kGainsFitStatusWords, "status");
 }
 
 GainsFitResult fit_gains(const ObservedAllocation& o, const std::vector<Matrix>& features,

@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "allocsim/analysis/additive_residual.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -283,14 +284,13 @@ void LatentAssociationOptions::validate() const {
   if (random_starts < 0) throw InputError("random_starts", "must be 0 or more");
 }
 
-std::string to_string(LatentFitStatus status) {
-  return status == LatentFitStatus::converged ? "converged" : "not_converged";
-}
+constexpr EnumWord<LatentFitStatus> kLatentFitStatusWords[] = {
+    {LatentFitStatus::converged, "converged"}, {LatentFitStatus::not_converged, "not_converged"}};
+
+std::string to_string(LatentFitStatus value) { return word_of(value, kLatentFitStatusWords); }
 
 LatentFitStatus latent_fit_status_from_string(const std::string& text) {
-  if (text == "converged") return LatentFitStatus::converged;
-  if (text == "not_converged") return LatentFitStatus::not_converged;
-  throw InputError("status", "'" + text + "' is not one of converged, not_converged");
+  return value_of(text, kLatentFitStatusWords, "status");
 }
 
 std::string latent_model_name(long rank) {

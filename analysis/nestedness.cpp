@@ -7,6 +7,7 @@
 #include <numeric>
 #include <vector>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -353,20 +354,13 @@ double connectance(const BinaryMatrix& links) {
   return links.cast<double>().sum() / static_cast<double>(links.size());
 }
 
-std::string to_string(PairOrder order) {
-  switch (order) {
-    case PairOrder::by_degree:
-      return "by-degree";
-    case PairOrder::as_given:
-      return "as-given";
-  }
-  return "unknown";
-}
+constexpr EnumWord<PairOrder> kPairOrderWords[] = {{PairOrder::by_degree, "by-degree"},
+                                                   {PairOrder::as_given, "as-given"}};
+
+std::string to_string(PairOrder value) { return word_of(value, kPairOrderWords); }
 
 PairOrder pair_order_from_string(const std::string& text) {
-  for (PairOrder order : {PairOrder::by_degree, PairOrder::as_given})
-    if (to_string(order) == text) return order;
-  throw InputError("order", "'" + text + "' is not one of by-degree, as-given");
+  return value_of(text, kPairOrderWords, "order");
 }
 
 NestednessParts nodf(const BinaryMatrix& links, PairOrder order) {

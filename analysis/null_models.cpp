@@ -12,6 +12,7 @@
 #include <sstream>
 #include <thread>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -224,60 +225,39 @@ std::string sampler_description(const NullOptions& options, bool counts, long tr
 
 // ---- names ----
 
-std::string to_string(NullModel model) {
-  switch (model) {
-    case NullModel::fixed_margins:
-      return "fixed-margins";
-    case NullModel::bicm:
-      return "bicm";
-    case NullModel::curveball:
-      return "curveball";
-  }
-  return "unknown";
-}
+constexpr EnumWord<NullModel> kNullModelWords[] = {{NullModel::curveball, "curveball"},
+                                                   {NullModel::bicm, "bicm"},
+                                                   {NullModel::fixed_margins, "fixed-margins"}};
+
+std::string to_string(NullModel value) { return word_of(value, kNullModelWords); }
 
 NullModel null_model_from_string(const std::string& text) {
-  for (auto model : {NullModel::fixed_margins, NullModel::bicm, NullModel::curveball})
-    if (to_string(model) == text) return model;
-  throw InputError("nulls", "'" + text + "' is not one of fixed-margins, bicm, curveball");
+  return value_of(text, kNullModelWords, "nulls");
 }
 
-std::string to_string(BicmStatus status) {
-  switch (status) {
-    case BicmStatus::converged:
-      return "converged";
-    case BicmStatus::not_converged:
-      return "not_converged";
-    case BicmStatus::no_links:
-      return "no_links";
-  }
-  return "unknown";
-}
+std::vector<std::string> null_model_words() { return words_of(kNullModelWords); }
+
+constexpr EnumWord<BicmStatus> kBicmStatusWords[] = {{BicmStatus::converged, "converged"},
+                                                     {BicmStatus::not_converged, "not_converged"},
+                                                     {BicmStatus::no_links, "no_links"}};
+
+std::string to_string(BicmStatus value) { return word_of(value, kBicmStatusWords); }
 
 BicmStatus bicm_status_from_string(const std::string& text) {
-  for (auto s : {BicmStatus::converged, BicmStatus::not_converged, BicmStatus::no_links})
-    if (to_string(s) == text) return s;
-  throw InputError("status", "'" + text + "' is not one of converged, not_converged, no_links");
+  return value_of(text, kBicmStatusWords, "status");
 }
 
-std::string to_string(NullComparisonStatus status) {
-  switch (status) {
-    case NullComparisonStatus::compared:
-      return "compared";
-    case NullComparisonStatus::zero_spread:
-      return "zero_spread";
-    case NullComparisonStatus::fit_not_converged:
-      return "fit_not_converged";
-  }
-  return "unknown";
+constexpr EnumWord<NullComparisonStatus> kNullComparisonStatusWords[] = {
+    {NullComparisonStatus::compared, "compared"},
+    {NullComparisonStatus::zero_spread, "zero_spread"},
+    {NullComparisonStatus::fit_not_converged, "fit_not_converged"}};
+
+std::string to_string(NullComparisonStatus value) {
+  return word_of(value, kNullComparisonStatusWords);
 }
 
 NullComparisonStatus null_comparison_status_from_string(const std::string& text) {
-  for (auto s : {NullComparisonStatus::compared, NullComparisonStatus::zero_spread,
-                 NullComparisonStatus::fit_not_converged})
-    if (to_string(s) == text) return s;
-  throw InputError("status",
-                   "'" + text + "' is not one of compared, zero_spread, fit_not_converged");
+  return value_of(text, kNullComparisonStatusWords, "status");
 }
 
 // ---- weighted tables ----

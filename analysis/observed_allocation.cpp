@@ -4,6 +4,7 @@
 #include <sstream>
 
 #include "allocsim/core/csv.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -125,23 +126,17 @@ void read_values(const Matrix& p, const ValueReading& r, const std::string& sour
 
 }  // namespace
 
-std::string to_string(ValueKind kind) {
-  switch (kind) {
-    case ValueKind::automatic:
-      return "automatic";
-    case ValueKind::counts:
-      return "counts";
-    case ValueKind::shares:
-      return "shares";
-  }
-  return "";
-}
+constexpr EnumWord<ValueKind> kValueKindWords[] = {{ValueKind::automatic, "automatic"},
+                                                   {ValueKind::counts, "counts"},
+                                                   {ValueKind::shares, "shares"}};
+
+std::string to_string(ValueKind value) { return word_of(value, kValueKindWords); }
 
 ValueKind value_kind_from_string(const std::string& text) {
-  for (auto k : {ValueKind::automatic, ValueKind::counts, ValueKind::shares})
-    if (to_string(k) == text) return k;
-  throw InputError("values", "'" + text + "' is not one of counts, shares, automatic");
+  return value_of(text, kValueKindWords, "values");
 }
+
+std::vector<std::string> value_kind_words() { return words_of(kValueKindWords); }
 
 void ValueReading::validate() const {
   if (!(units >= 0) || !std::isfinite(units))

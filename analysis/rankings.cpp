@@ -6,6 +6,7 @@
 #include <numeric>
 #include <sstream>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -157,26 +158,18 @@ void FitnessComplexityOptions::validate() const {
     throw InputError("zero_threshold", "must be in (0, 1)");
 }
 
-std::string to_string(FitnessComplexityStatus status) {
-  switch (status) {
-    case FitnessComplexityStatus::converged:
-      return "converged";
-    case FitnessComplexityStatus::scores_decay:
-      return "scores_decay";
-    case FitnessComplexityStatus::not_converged:
-      return "not_converged";
-    case FitnessComplexityStatus::no_links:
-      return "no_links";
-  }
-  return "unknown";
+constexpr EnumWord<FitnessComplexityStatus> kFitnessComplexityStatusWords[] = {
+    {FitnessComplexityStatus::converged, "converged"},
+    {FitnessComplexityStatus::scores_decay, "scores_decay"},
+    {FitnessComplexityStatus::not_converged, "not_converged"},
+    {FitnessComplexityStatus::no_links, "no_links"}};
+
+std::string to_string(FitnessComplexityStatus value) {
+  return word_of(value, kFitnessComplexityStatusWords);
 }
 
 FitnessComplexityStatus fitness_complexity_status_from_string(const std::string& text) {
-  for (auto s : {FitnessComplexityStatus::converged, FitnessComplexityStatus::scores_decay,
-                 FitnessComplexityStatus::not_converged, FitnessComplexityStatus::no_links})
-    if (to_string(s) == text) return s;
-  throw InputError("status",
-                   "'" + text + "' is not one of converged, scores_decay, not_converged, no_links");
+  return value_of(text, kFitnessComplexityStatusWords, "status");
 }
 
 std::string FitnessComplexityResult::brief() const {
@@ -260,23 +253,17 @@ FitnessComplexityResult fitness_complexity(const BinaryMatrix& links,
   return result;
 }
 
-std::string to_string(ComplexityIndexStatus status) {
-  switch (status) {
-    case ComplexityIndexStatus::computed:
-      return "computed";
-    case ComplexityIndexStatus::degenerate:
-      return "degenerate";
-    case ComplexityIndexStatus::no_links:
-      return "no_links";
-  }
-  return "unknown";
+constexpr EnumWord<ComplexityIndexStatus> kComplexityIndexStatusWords[] = {
+    {ComplexityIndexStatus::computed, "computed"},
+    {ComplexityIndexStatus::degenerate, "degenerate"},
+    {ComplexityIndexStatus::no_links, "no_links"}};
+
+std::string to_string(ComplexityIndexStatus value) {
+  return word_of(value, kComplexityIndexStatusWords);
 }
 
 ComplexityIndexStatus complexity_index_status_from_string(const std::string& text) {
-  for (auto s : {ComplexityIndexStatus::computed, ComplexityIndexStatus::degenerate,
-                 ComplexityIndexStatus::no_links})
-    if (to_string(s) == text) return s;
-  throw InputError("status", "'" + text + "' is not one of computed, degenerate, no_links");
+  return value_of(text, kComplexityIndexStatusWords, "status");
 }
 
 std::string ComplexityIndexResult::brief() const {

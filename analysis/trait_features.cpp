@@ -3,6 +3,7 @@
 #include <cmath>
 #include <utility>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -42,15 +43,17 @@ std::string feature_name(const std::string& x, const std::string& y, TraitFeatur
 
 }  // namespace
 
-std::string to_string(TraitFeatureForm form) {
-  return form == TraitFeatureForm::product ? "product" : "distance";
-}
+constexpr EnumWord<TraitFeatureForm> kTraitFeatureFormWords[] = {
+    {TraitFeatureForm::negative_squared_distance, "distance"},
+    {TraitFeatureForm::product, "product"}};
+
+std::string to_string(TraitFeatureForm value) { return word_of(value, kTraitFeatureFormWords); }
 
 TraitFeatureForm trait_feature_form_from_string(const std::string& text) {
-  if (text == "product") return TraitFeatureForm::product;
-  if (text == "distance") return TraitFeatureForm::negative_squared_distance;
-  throw InputError("trait feature form", "'" + text + "' is not one of product, distance");
+  return value_of(text, kTraitFeatureFormWords, "trait feature form");
 }
+
+std::vector<std::string> trait_feature_form_words() { return words_of(kTraitFeatureFormWords); }
 
 TraitFeatures build_trait_features(const TraitTable& row_traits, const TraitTable& column_traits,
                                    TraitFeatureForm form) {

@@ -12,6 +12,7 @@
 #include "allocsim/analysis/report_exports.hpp"
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
 #include "allocsim/core/label_alignment.hpp"
@@ -27,39 +28,35 @@
 namespace allocsim::cli {
 namespace {
 
+// The option that sets a field of AllocationAnalysisOptions.
+std::string option_of_field(const std::string& field) {
+  if (field == "samples") return "--null-samples";
+  if (field == "seed") return "--null-seed";
+  return "--" + field;
+}
+
 AllocationAnalysisOptions read_options(const po::variables_map& vm) {
   AllocationAnalysisOptions options;
-  options.temperature.confidence = vm["confidence"].as<double>();
-  try {
-    options.temperature.validate();
-  } catch (const InputError&) {
-    throw InputError("--confidence", "must be in (0, 1), e.g. 0.95");
-  }
-  try {
-    options.binarize.rule = binarize_rule_from_string(vm["binarize"].as<std::string>());
-    if (vm.count("threshold")) options.binarize.threshold = vm["threshold"].as<double>();
-    options.binarize.validate();
-  } catch (const InputError& e) {
-    throw InputError(
-        vm.count("threshold") && e.where() == "threshold" ? "--threshold" : "--binarize",
-        std::string(e.what()).substr(e.where().size() + 2));
-  }
-  if (vm.count("nulls")) {
-    NullOptions nulls;
-    try {
-      nulls.model = null_model_from_string(vm["nulls"].as<std::string>());
-    } catch (const InputError& e) {
-      throw InputError("--nulls", "'" + vm["nulls"].as<std::string>() +
-                                      "' is not one of curveball, bicm, fixed-margins");
-    }
-    nulls.samples = vm["null-samples"].as<long>();
-    nulls.seed = static_cast<std::uint64_t>(vm["null-seed"].as<long>());
-    if (nulls.samples < 2) throw InputError("--null-samples", "must be at least 2");
+  check_under_names(
+      [&] {
+        options.temperature.confidence = vm["confidence"].as<double>();
+        options.binarize.rule = binarize_rule_from_string(vm["binarize"].as<std::string>());
+        if (vm.count("threshold")) options.binarize.threshold = vm["threshold"].as<double>();
+        if (vm.count("nulls")) {
+          NullOptions nulls;
+          nulls.model = null_model_from_string(vm["nulls"].as<std::string>());
+          nulls.samples = vm["null-samples"].as<long>();
+          nulls.seed = static_cast<std::uint64_t>(vm["null-seed"].as<long>());
+          options.nulls = nulls;
+        }
+        options.validate();
+      },
+      option_of_field);
+  if (options.nulls) {
     // The ensemble keeps one value per sample and metric (NODF, WNODF).
-    require_memory(static_cast<double>(nulls.samples) * 2 * sizeof(double),
-                   "a null ensemble of " + std::to_string(nulls.samples) + " samples",
+    require_memory(static_cast<double>(options.nulls->samples) * 2 * sizeof(double),
+                   "a null ensemble of " + std::to_string(options.nulls->samples) + " samples",
                    "--null-samples", "use fewer samples");
-    options.nulls = nulls;
   }
   return options;
 }
@@ -75,7 +72,7 @@ ValueReading read_value_reading(const po::variables_map& vm) {
     }
     reading.validate();
   } catch (const InputError& e) {
-    throw InputError("--" + e.where(), std::string(e.what()).substr(e.where().size() + 2));
+    throw e.at("--" + e.where());
   }
   return reading;
 }
@@ -299,11 +296,11 @@ int analyze_command(const Arguments& args) {
       "CSV matrix of gains (agents x partners); optional: "
       "without it no temperature, everything else")(
       "values", po::value<std::string>(),
-      "how the allocation's cells are read: counts (whole "
-      "units) | shares (default: counts when every cell is whole)")(
-      "units", po::value<double>(),
-      "shares: the number N of independent units behind them "
-      "(for standard errors and intervals)")(
+      ("how the allocation's cells are read: " + join_words(value_kind_words(), " | ") +
+       " (default: counts when every cell is whole, else shares)")
+          .c_str())("units", po::value<double>(),
+                    "shares: the number N of independent units behind them "
+                    "(for standard errors and intervals)")(
       "export-dir", po::value<std::string>(),
       "write labelled CSV files of the analysis into this folder")(
       "missing", po::value<std::string>(),
@@ -318,13 +315,13 @@ int analyze_command(const Arguments& args) {
       "write", "results file: store the analysis in each run's analysis/ group")(
       "confidence", po::value<double>()->default_value(0.95), "level of the temperature interval")(
       "binarize", po::value<std::string>()->default_value("positive"),
-      "link rule for structure metrics: positive | row-share | min-count | revealed-advantage")(
+      ("link rule for structure metrics: " + join_words(binarize_rule_words(), " | ")).c_str())(
       "threshold", po::value<double>(), "threshold of the link rule (default: the rule's own)")(
       "nulls", po::value<std::string>(),
-      "compare NODF (and WNODF) with a null model: "
-      "curveball | bicm | fixed-margins")("null-samples", po::value<long>()->default_value(200),
-                                          "size of the null ensemble")(
-      "null-seed", po::value<long>()->default_value(1), "seed of the null ensemble")(
+      ("compare NODF (and WNODF) with a null model: " + join_words(null_model_words(), " | "))
+          .c_str())("null-samples", po::value<long>()->default_value(200),
+                    "size of the null ensemble")("null-seed", po::value<long>()->default_value(1),
+                                                 "seed of the null ensemble")(
       "json", "print one JSON object on stdout (one per run for a results file)");
   add_gains_reconstruction_options(options);
   po::positional_options_description positional;

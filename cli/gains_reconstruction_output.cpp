@@ -146,7 +146,7 @@ GainsReconstructionReport reconstruct_from_options(const po::variables_map& vm,
     return reconstruct_gains(observed, input, options);
   } catch (const InputError& e) {
     if (e.where() != "latent rank") throw;
-    throw InputError("--latent-rank", std::string(e.what()).substr(e.where().size() + 2));
+    throw e.at("--latent-rank");
   }
 }
 

@@ -165,8 +165,9 @@ int simulate_command(const Arguments& args) {
   }
   if (!report.result.settling.settled) {
     std::cerr << "allocsim simulate: warning: " << report.run << " "
-              << report.result.settling.brief()
-              << " (its allocation after burn-in is not the stationary one; see docs/guide.md)\n";
+              << report.result.settling.brief() << "; " << report.result.settling.advice << " ("
+              << key_list("dynamics", report.result.settling.settings_to_change)
+              << "); its allocation after burn-in is not the stationary one; see docs/guide.md\n";
   }
 
   if (vm.count("json")) {

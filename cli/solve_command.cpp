@@ -101,7 +101,7 @@ SolveReport solve_exactly(const TransportProblem& problem, double mass_units) {
   try {
     options.validate();
   } catch (const InputError& e) {
-    throw InputError("--mass-units", std::string(e.what()).substr(e.where().size() + 2));
+    throw e.at("--mass-units");
   }
   const ExactResult r = solve_exact(problem, options);
   SolveReport report{to_string(r.status), r.optimal(), r.message, r.coupling, {},
@@ -160,7 +160,7 @@ EntropicOptions entropic_options(const po::variables_map& vm, const TransportPro
   try {
     options.validate();
   } catch (const InputError& e) {
-    throw InputError("--" + e.where(), std::string(e.what()).substr(e.where().size() + 2));
+    throw e.at("--" + e.where());
   }
   return options;
 }

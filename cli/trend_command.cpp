@@ -289,7 +289,7 @@ Request make_request(const po::variables_map& vm, const SummaryColumns& summary,
     request.options.validate();
   } catch (const InputError& e) {
     const std::string option = e.where() == "bootstrap_draws" ? "--draws" : "--" + e.where();
-    throw InputError(option, std::string(e.what()).substr(e.where().size() + 2));
+    throw e.at(option);
   }
   return request;
 }
@@ -328,8 +328,7 @@ int trend_command(const Arguments& args) {
   try {
     levels = trends_by_level(x, y, z, level_labels(summary, request.factors), request.options);
   } catch (const InputError& e) {
-    throw InputError(reader.path() + ": " + request.x,
-                     std::string(e.what()).substr(e.where().size() + 2));
+    throw InputError(reader.path() + ": " + request.x, e.reason());
   }
   std::vector<std::string> sentences;
   for (const auto& level : levels) {

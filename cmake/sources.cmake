@@ -72,6 +72,7 @@ allocsim_layer(experiments
     experiments/benchmark_set.cpp
     experiments/benchmark_sources.cpp
     experiments/experiment.cpp
+    experiments/key_errors.cpp
     experiments/keys.cpp
     experiments/score_file.cpp
     experiments/simulation.cpp

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <unordered_map>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -63,9 +64,10 @@ LabelAlignment by_position(const LabelSide& reference, const LabelSide& other) {
 
 }  // namespace
 
-std::string to_string(LabelMatching matching) {
-  return matching == LabelMatching::by_label ? "by-label" : "by-position";
-}
+constexpr EnumWord<LabelMatching> kLabelMatchingWords[] = {
+    {LabelMatching::by_label, "by-label"}, {LabelMatching::by_position, "by-position"}};
+
+std::string to_string(LabelMatching value) { return word_of(value, kLabelMatchingWords); }
 
 void require_unique_labels(const std::vector<std::string>& labels, const std::string& source,
                            const std::string& side) {

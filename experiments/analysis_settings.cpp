@@ -5,11 +5,13 @@
 #include "allocsim/analysis/trait_features.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
+#include "key_errors.hpp"
 
 namespace allocsim {
+namespace {
 
-AllocationAnalysisOptions analysis_options(const ExperimentValues& values,
-                                           std::uint64_t run_index) {
+AllocationAnalysisOptions read_analysis_options(const ExperimentValues& values,
+                                                std::uint64_t run_index) {
   AllocationAnalysisOptions options;
   options.temperature.confidence = values.real("analysis.confidence");
   options.binarize.rule = binarize_rule_from_string(values.text("analysis.binarize"));
@@ -25,6 +27,18 @@ AllocationAnalysisOptions analysis_options(const ExperimentValues& values,
     nulls.threads = 1;  // runs of a sweep already fill the threads
     options.nulls = nulls;
   }
+  options.validate();
+  return options;
+}
+
+}  // namespace
+
+AllocationAnalysisOptions analysis_options(const ExperimentValues& values,
+                                           std::uint64_t run_index) {
+  AllocationAnalysisOptions options;
+  detail::check_as_keys(values, "analysis",
+                        [&] { options = read_analysis_options(values, run_index); },
+                        {{"samples", "analysis.null_samples"}});
   return options;
 }
 

@@ -9,6 +9,7 @@
 #include <optional>
 #include <sstream>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -301,17 +302,11 @@ std::string fixed(double value, const char* format, int width) {
 
 }  // namespace
 
-std::string to_string(AnswerKind kind) {
-  switch (kind) {
-    case AnswerKind::answered:
-      return "answered";
-    case AnswerKind::declined:
-      return "declined";
-    case AnswerKind::missing:
-      return "missing";
-  }
-  return "?";
-}
+constexpr EnumWord<AnswerKind> kAnswerKindWords[] = {{AnswerKind::answered, "answered"},
+                                                     {AnswerKind::declined, "declined"},
+                                                     {AnswerKind::missing, "missing"}};
+
+std::string to_string(AnswerKind value) { return word_of(value, kAnswerKindWords); }
 
 ScoreReport score_answers(const CsvTable& truth, const CsvTable& answers) {
   ScoreReport report;

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "allocsim/analysis/entropic_transport.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/engine.hpp"
@@ -107,33 +108,18 @@ Matrix probit_allocation(const TransportProblem& problem, double temperature, lo
 
 }  // namespace
 
-std::string to_string(BenchmarkSource source) {
-  switch (source) {
-    case BenchmarkSource::model:
-      return "model";
-    case BenchmarkSource::price:
-      return "price";
-    case BenchmarkSource::gumbel:
-      return "gumbel";
-    case BenchmarkSource::queue:
-      return "queue";
-    case BenchmarkSource::learn:
-      return "learn";
-    case BenchmarkSource::mixed_noise:
-      return "mixed-noise";
-  }
-  return "?";
-}
+constexpr EnumWord<BenchmarkSource> kBenchmarkSourceWords[] = {
+    {BenchmarkSource::model, "model"},   {BenchmarkSource::price, "price"},
+    {BenchmarkSource::gumbel, "gumbel"}, {BenchmarkSource::queue, "queue"},
+    {BenchmarkSource::learn, "learn"},   {BenchmarkSource::mixed_noise, "mixed-noise"}};
+
+std::string to_string(BenchmarkSource value) { return word_of(value, kBenchmarkSourceWords); }
 
 BenchmarkSource benchmark_source_from_string(const std::string& text, const std::string& where) {
-  for (const auto source :
-       {BenchmarkSource::model, BenchmarkSource::price, BenchmarkSource::gumbel,
-        BenchmarkSource::queue, BenchmarkSource::learn, BenchmarkSource::mixed_noise}) {
-    if (text == to_string(source)) return source;
-  }
-  throw InputError(where,
-                   "'" + text + "' is not one of model, price, gumbel, queue, learn, mixed-noise");
+  return value_of(text, kBenchmarkSourceWords, where);
 }
+
+std::vector<std::string> benchmark_source_words() { return words_of(kBenchmarkSourceWords); }
 
 bool is_misspecified(BenchmarkSource source) {
   return source == BenchmarkSource::queue || source == BenchmarkSource::learn ||

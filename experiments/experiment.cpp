@@ -3,6 +3,7 @@
 #include "allocsim/experiments/analysis_settings.hpp"
 
 #include "allocsim/core/error.hpp"
+#include "key_errors.hpp"
 
 namespace allocsim {
 namespace {
@@ -16,11 +17,11 @@ ScenarioOptions scenario_options(const ExperimentValues& v) {
   o.gains_exponent = v.real("scenario.gains_exponent");
   o.gains_rank = static_cast<long>(v.integer("scenario.gains_rank"));
   o.gains_file = v.text("scenario.gains_file");
-  o.budgets = mass_kind_from_string(v.text("scenario.budgets"), "scenario.budgets");
+  o.budgets = mass_kind_from_string(v.text("scenario.budgets"), "budgets");
   o.budgets_exponent = v.real("scenario.budgets_exponent");
   o.budgets_spread = v.real("scenario.budgets_spread");
   o.budgets_file = v.text("scenario.budgets_file");
-  o.capacities = mass_kind_from_string(v.text("scenario.capacities"), "scenario.capacities");
+  o.capacities = mass_kind_from_string(v.text("scenario.capacities"), "capacities");
   o.capacities_exponent = v.real("scenario.capacities_exponent");
   o.capacities_spread = v.real("scenario.capacities_spread");
   o.capacities_file = v.text("scenario.capacities_file");
@@ -50,34 +51,20 @@ DynamicsOptions dynamics_options(const ExperimentValues& v) {
   return o;
 }
 
-// Re-throws a key's InputError with where the key was given.
-template <typename Check>
-void with_key_location(const ExperimentValues& v, Check check) {
-  try {
-    check();
-  } catch (const InputError& e) {
-    const std::string& key = e.where();
-    if (find_experiment_key(key) && v.given(key)) {
-      const std::string what = std::string(e.what()).substr(key.size() + 2);
-      const std::string& where = v.where(key);
-      throw InputError(where == "--" + key ? where : where + ": " + key, what);
-    }
-    throw;
-  }
-}
-
 }  // namespace
 
 SimulationSettings simulation_settings(const ExperimentValues& values) {
   SimulationSettings settings;
-  settings.scenario = scenario_options(values);
-  settings.dynamics = dynamics_options(values);
-  settings.output_file = values.text("output.file");
-  with_key_location(values, [&] {
+  detail::check_as_keys(values, "scenario", [&] {
+    settings.scenario = scenario_options(values);
     settings.scenario.validate();
+  });
+  detail::check_as_keys(values, "dynamics", [&] {
+    settings.dynamics = dynamics_options(values);
     settings.dynamics.validate();
     check_reconstruction_keys(values);
   });
+  settings.output_file = values.text("output.file");
   return settings;
 }
 

@@ -9,7 +9,11 @@
 #include <fstream>
 #include <sstream>
 
+#include "allocsim/analysis/binarize.hpp"
+#include "allocsim/analysis/null_models.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/sim/rules.hpp"
+#include "allocsim/sim/scenario.hpp"
 
 namespace allocsim {
 namespace {
@@ -63,12 +67,14 @@ ExperimentKey boolean_key(std::string name, std::string value, std::string descr
 }
 
 std::vector<ExperimentKey> build_keys() {
-  const std::vector<std::string> masses = {"uniform", "zipf", "lognormal", "file"};
+  const std::vector<std::string> masses = mass_kind_words();
+  std::vector<std::string> nulls = null_model_words();
+  nulls.insert(nulls.begin(), "none");
   return {
       integer_key("scenario.agents", "20", "number of agents (rows)", 1),
       integer_key("scenario.partners", "30", "number of partners (columns)", 1),
       word_key("scenario.gains", "trait-distance", "how the gains are generated",
-               {"rank-product", "trait-distance", "random", "features", "file"}),
+               gains_kind_words()),
       real_key("scenario.gains_scale", "1", "factor on every generated gain", 0, true),
       real_key("scenario.gains_exponent", "2", "p of trait-distance gains -|x_i - y_j|^p", 0, true),
       integer_key("scenario.gains_rank", "2", "number of latent features of features gains", 1),
@@ -83,14 +89,12 @@ std::vector<ExperimentKey> build_keys() {
       real_key("scenario.capacities_spread", "1", "sigma of lognormal capacities", 0, false),
       path_key("scenario.capacities_file",
                "CSV capacities for capacities = file (one per partner)"),
-      word_key("scenario.access", "full", "which agent may use which partner",
-               {"full", "threshold", "random", "file"}),
+      word_key("scenario.access", "full", "which agent may use which partner", access_kind_words()),
       real_key("scenario.access_density", "0.5", "share of allowed pairs of random access", 0, true,
                1, true),
       path_key("scenario.access_file", "CSV 0/1 matrix for access = file (agents x partners)"),
       integer_key("scenario.seed", "1", "experiment seed of every random draw", 0),
-      word_key("dynamics.rule", "price", "choice-and-capacity mechanism",
-               {"price", "gumbel", "queue", "learn"}),
+      word_key("dynamics.rule", "price", "choice-and-capacity mechanism", rule_kind_words()),
       real_key("dynamics.temperature", "0.1", "choice temperature T, in gain units", 0, true),
       integer_key("dynamics.rounds", "500", "rounds to play", 1),
       integer_key("dynamics.units", "10000", "budget units spent per round by all agents together",
@@ -112,11 +116,10 @@ std::vector<ExperimentKey> build_keys() {
       real_key("analysis.confidence", "0.95", "level of the temperature interval", 0, true, 1,
                true),
       word_key("analysis.binarize", "positive", "link rule of the structure metrics",
-               {"positive", "row-share", "min-count", "revealed-advantage"}),
+               binarize_rule_words()),
       real_key("analysis.threshold", "0", "threshold of the link rule (0 = the rule's own)", 0,
                false),
-      word_key("analysis.nulls", "none", "null model NODF (and WNODF) are compared with",
-               {"none", "curveball", "bicm", "fixed-margins"}),
+      word_key("analysis.nulls", "none", "null model NODF (and WNODF) are compared with", nulls),
       integer_key("analysis.null_samples", "200", "size of the null ensemble", 2),
       word_key("analysis.latent_rank", "none",
                "reconstruct the gains from the allocation alone: the latent association model "
@@ -280,6 +283,12 @@ const ExperimentKey* find_experiment_key(const std::string& name) {
     if (key.name == name) return &key;
   }
   return nullptr;
+}
+
+std::string key_list(const std::string& section, const std::vector<std::string>& fields) {
+  std::string list;
+  for (const auto& field : fields) list += (list.empty() ? "" : ", ") + section + "." + field;
+  return list;
 }
 
 std::string nearest_experiment_key(const std::string& name) {

@@ -16,6 +16,7 @@
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "key_errors.hpp"
 
 namespace allocsim {
 namespace {
@@ -169,7 +170,9 @@ SimulationReport simulate_to_file(const ExperimentValues& values,
   // Build the scenario once before creating the file, so bad input (files,
   // shapes, access) fails without leaving anything behind.
   const auto run_index = static_cast<std::uint64_t>(request.run_index);
-  const TransportProblem check = make_scenario(settings.scenario, run_index);
+  TransportProblem check;
+  detail::check_as_keys(values, "scenario",
+                        [&] { check = make_scenario(settings.scenario, run_index); });
 
   SimulationReport report;
   report.output_file = settings.output_file;

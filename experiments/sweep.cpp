@@ -5,6 +5,7 @@
 #include <cstdlib>
 #include <regex>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim {
@@ -74,14 +75,13 @@ std::vector<std::string> integer_range(long long first, long long last, const st
 
 }  // namespace
 
-std::string to_string(SweepCombine combine) {
-  return combine == SweepCombine::grid ? "grid" : "zip";
-}
+constexpr EnumWord<SweepCombine> kSweepCombineWords[] = {{SweepCombine::grid, "grid"},
+                                                         {SweepCombine::zip, "zip"}};
+
+std::string to_string(SweepCombine value) { return word_of(value, kSweepCombineWords); }
 
 SweepCombine sweep_combine_from_string(const std::string& text, const std::string& where) {
-  if (text == "grid") return SweepCombine::grid;
-  if (text == "zip") return SweepCombine::zip;
-  throw InputError(where, "combine is '" + text + "'; use grid or zip");
+  return value_of(text, kSweepCombineWords, where);
 }
 
 std::vector<std::string> expand_sweep_values(const std::string& spec, const std::string& where) {

@@ -25,6 +25,7 @@
 #include "allocsim/results/results_reader.hpp"
 #include "allocsim/results/run_store.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "key_errors.hpp"
 
 namespace allocsim {
 namespace {
@@ -399,7 +400,8 @@ void check_data_files(const SweepPlan& plan) {
     for (const auto& [key, path] : files) signature += "|" + key + "=" + path;
     if (!checked.insert(signature).second) continue;
     try {
-      make_scenario(simulation_settings(values).scenario, 0);
+      const SimulationSettings settings = simulation_settings(values);
+      detail::check_as_keys(values, "scenario", [&] { make_scenario(settings.scenario, 0); });
     } catch (const InputError& e) {
       std::string key = files.front().first;
       for (const auto& [file_key, path] : files) {

@@ -7,6 +7,7 @@
 #include <numeric>
 #include <sstream>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 
@@ -162,19 +163,13 @@ void TrendOptions::validate() const {
   if (!(z_threshold > 0)) throw InputError("z_threshold", "must be positive");
 }
 
-std::string to_string(TrendDirection direction) {
-  switch (direction) {
-    case TrendDirection::rises:
-      return "rises";
-    case TrendDirection::falls:
-      return "falls";
-    case TrendDirection::no_clear_trend:
-      return "no clear trend";
-    case TrendDirection::not_measurable:
-      return "not measurable";
-  }
-  return "unknown";
-}
+constexpr EnumWord<TrendDirection> kTrendDirectionWords[] = {
+    {TrendDirection::rises, "rises"},
+    {TrendDirection::falls, "falls"},
+    {TrendDirection::no_clear_trend, "no clear trend"},
+    {TrendDirection::not_measurable, "not measurable"}};
+
+std::string to_string(TrendDirection value) { return word_of(value, kTrendDirectionWords); }
 
 std::vector<double> average_ranks(const std::vector<double>& values) {
   std::vector<std::size_t> order(values.size());

@@ -1,6 +1,7 @@
 // Escaping plain text for gnuplot, and the figure options.
 #include <cstring>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/plots/figures.hpp"
 
@@ -42,24 +43,16 @@ std::string quote_gnuplot_tic_label(const std::string& text) {
   return quote_gnuplot_text(doubled);
 }
 
-std::string to_string(ImageFormat format) {
-  switch (format) {
-    case ImageFormat::png:
-      return "png";
-    case ImageFormat::svg:
-      return "svg";
-    case ImageFormat::pdf:
-      return "pdf";
-  }
-  return "png";
-}
+constexpr EnumWord<ImageFormat> kImageFormatWords[] = {
+    {ImageFormat::png, "png"}, {ImageFormat::svg, "svg"}, {ImageFormat::pdf, "pdf"}};
+
+std::string to_string(ImageFormat value) { return word_of(value, kImageFormatWords); }
 
 ImageFormat image_format_from_string(const std::string& text) {
-  for (const ImageFormat f : {ImageFormat::png, ImageFormat::svg, ImageFormat::pdf}) {
-    if (text == to_string(f)) return f;
-  }
-  throw InputError("--format", "'" + text + "' is not one of png, svg, pdf");
+  return value_of(text, kImageFormatWords, "--format");
 }
+
+std::vector<std::string> image_format_words() { return words_of(kImageFormatWords); }
 
 std::string file_extension(ImageFormat format) { return to_string(format); }
 

@@ -15,6 +15,21 @@
 namespace allocsim {
 namespace {
 
+// Writes a dataset at `path` below the run (groups created, an existing
+// dataset of that name replaced) through write(parent, name).
+template <class Write>
+void replace_dataset(RunWriter::Group& run, const std::string& path, Write write) {
+  write_guarded(run.path, [&]() -> void {
+    const std::size_t slash = path.rfind('/');
+    H5::Group parent = slash == std::string::npos
+                           ? run.group
+                           : open_or_create_groups(run.group, path.substr(0, slash));
+    const std::string name = slash == std::string::npos ? path : path.substr(slash + 1);
+    if (parent.nameExists(name)) parent.unlink(name);
+    write(parent, name);
+  });
+}
+
 std::string runs_path(const std::string& name) {
   return std::string("/") + layout::kRuns + "/" + name;
 }
@@ -102,25 +117,13 @@ void RunWriter::set_integer(const std::string& name, long long value) {
 }
 
 void RunWriter::write_matrix(const std::string& path, const Matrix& values) {
-  return write_guarded(group_->path, [&]() -> void {
-    const std::size_t slash = path.rfind('/');
-    H5::Group parent = slash == std::string::npos
-                           ? group_->group
-                           : open_or_create_groups(group_->group, path.substr(0, slash));
-    const std::string name = slash == std::string::npos ? path : path.substr(slash + 1);
-    if (parent.nameExists(name)) parent.unlink(name);
+  replace_dataset(*group_, path, [&](H5::Group& parent, const std::string& name) {
     allocsim::write_matrix(parent, name, values);
   });
 }
 
 void RunWriter::write_vector(const std::string& path, const Vector& values) {
-  return write_guarded(group_->path, [&]() -> void {
-    const std::size_t slash = path.rfind('/');
-    H5::Group parent = slash == std::string::npos
-                           ? group_->group
-                           : open_or_create_groups(group_->group, path.substr(0, slash));
-    const std::string name = slash == std::string::npos ? path : path.substr(slash + 1);
-    if (parent.nameExists(name)) parent.unlink(name);
+  replace_dataset(*group_, path, [&](H5::Group& parent, const std::string& name) {
     allocsim::write_vector(parent, name, values);
   });
 }

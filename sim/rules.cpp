@@ -6,16 +6,12 @@
 #include <thread>
 #include <vector>
 
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "rule_parts.hpp"
 
 namespace allocsim {
 namespace {
-
-const std::pair<const char*, RuleKind> kRuleNames[] = {{"price", RuleKind::price},
-                                                       {"gumbel", RuleKind::gumbel},
-                                                       {"queue", RuleKind::queue},
-                                                       {"learn", RuleKind::learn}};
 
 void require(bool ok, const char* key, const std::string& what) {
   if (!ok) throw InputError(key, what);
@@ -23,35 +19,32 @@ void require(bool ok, const char* key, const std::string& what) {
 
 }  // namespace
 
-std::string to_string(RuleKind rule) {
-  for (const auto& [name, kind] : kRuleNames) {
-    if (kind == rule) return name;
-  }
-  return "?";
-}
+constexpr EnumWord<RuleKind> kRuleKindWords[] = {{RuleKind::price, "price"},
+                                                 {RuleKind::gumbel, "gumbel"},
+                                                 {RuleKind::queue, "queue"},
+                                                 {RuleKind::learn, "learn"}};
+
+std::string to_string(RuleKind value) { return word_of(value, kRuleKindWords); }
 
 RuleKind rule_kind_from_string(const std::string& text) {
-  for (const auto& [name, kind] : kRuleNames) {
-    if (text == name) return kind;
-  }
-  throw InputError("dynamics.rule",
-                   "unknown rule '" + text + "' (valid: price, gumbel, queue, learn)");
+  return value_of(text, kRuleKindWords, "rule");
 }
 
+std::vector<std::string> rule_kind_words() { return words_of(kRuleKindWords); }
+
 void DynamicsOptions::validate() const {
-  require(temperature > 0 && std::isfinite(temperature), "dynamics.temperature",
+  require(temperature > 0 && std::isfinite(temperature), "temperature",
           "must be a number > 0 (the choice temperature, in gain units)");
-  require(rounds >= 1, "dynamics.rounds", "must be at least 1");
-  require(units >= 1, "dynamics.units", "must be at least 1");
-  require(burn_in >= 0 && burn_in < rounds, "dynamics.burn_in",
-          "must be in [0, dynamics.rounds) so that some rounds are recorded in the total");
-  require(window >= 1, "dynamics.window", "must be at least 1");
-  require(price_step >= 0 && price_step <= 1, "dynamics.price_step", "must be in [0, 1]");
-  require(learning_step > 0 && learning_step <= 1, "dynamics.learning_step", "must be in (0, 1]");
-  require(reward_noise >= 0 && std::isfinite(reward_noise), "dynamics.reward_noise",
-          "must be >= 0");
+  require(rounds >= 1, "rounds", "must be at least 1");
+  require(units >= 1, "units", "must be at least 1");
+  require(burn_in >= 0 && burn_in < rounds, "burn_in",
+          "must be in [0, rounds) so that some rounds are recorded in the total");
+  require(window >= 1, "window", "must be at least 1");
+  require(price_step >= 0 && price_step <= 1, "price_step", "must be in [0, 1]");
+  require(learning_step > 0 && learning_step <= 1, "learning_step", "must be in (0, 1]");
+  require(reward_noise >= 0 && std::isfinite(reward_noise), "reward_noise", "must be >= 0");
   require(threads >= 1, "threads", "must be at least 1");
-  require(!mean_field || rule == RuleKind::price || rule == RuleKind::gumbel, "dynamics.mean_field",
+  require(!mean_field || rule == RuleKind::price || rule == RuleKind::gumbel, "mean_field",
           "applies to the price and gumbel rules only");
 }
 

@@ -5,58 +5,38 @@
 #include <vector>
 
 #include "allocsim/core/csv.hpp"
+#include "allocsim/core/enum_words.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 
 namespace allocsim {
 namespace {
 
-template <typename Kind, std::size_t N>
-Kind kind_from_string(const std::string& text, const std::string& what,
-                      const std::pair<const char*, Kind> (&names)[N]) {
-  std::string valid;
-  for (const auto& [name, kind] : names) {
-    if (text == name) return kind;
-    valid += (valid.empty() ? "" : ", ") + std::string(name);
-  }
-  throw InputError(what, "unknown value '" + text + "' (valid: " + valid + ")");
-}
-
-const std::pair<const char*, GainsKind> kGainsNames[] = {
-    {"rank-product", GainsKind::rank_product},
-    {"trait-distance", GainsKind::trait_distance},
-    {"random", GainsKind::random},
-    {"features", GainsKind::features},
-    {"file", GainsKind::file}};
-const std::pair<const char*, MassKind> kMassNames[] = {{"uniform", MassKind::uniform},
-                                                       {"zipf", MassKind::zipf},
-                                                       {"lognormal", MassKind::lognormal},
-                                                       {"file", MassKind::file}};
-const std::pair<const char*, AccessKind> kAccessNames[] = {{"full", AccessKind::full},
-                                                           {"threshold", AccessKind::threshold},
-                                                           {"random", AccessKind::random},
-                                                           {"file", AccessKind::file}};
-
-template <typename Kind, std::size_t N>
-std::string kind_to_string(Kind kind, const std::pair<const char*, Kind> (&names)[N]) {
-  for (const auto& [name, k] : names) {
-    if (k == kind) return name;
-  }
-  return "?";
-}
+constexpr EnumWord<GainsKind> kGainsKindWords[] = {{GainsKind::rank_product, "rank-product"},
+                                                   {GainsKind::trait_distance, "trait-distance"},
+                                                   {GainsKind::random, "random"},
+                                                   {GainsKind::features, "features"},
+                                                   {GainsKind::file, "file"}};
+constexpr EnumWord<MassKind> kMassKindWords[] = {{MassKind::uniform, "uniform"},
+                                                 {MassKind::zipf, "zipf"},
+                                                 {MassKind::lognormal, "lognormal"},
+                                                 {MassKind::file, "file"}};
+constexpr EnumWord<AccessKind> kAccessKindWords[] = {{AccessKind::full, "full"},
+                                                     {AccessKind::threshold, "threshold"},
+                                                     {AccessKind::random, "random"},
+                                                     {AccessKind::file, "file"}};
 
 void require(bool ok, const char* key, const std::string& what) {
   if (!ok) throw InputError(key, what);
 }
 
 Matrix gains_from_file(const ScenarioOptions& o) {
-  require(!o.gains_file.empty(), "scenario.gains_file", "is needed when scenario.gains = file");
+  require(!o.gains_file.empty(), "gains_file", "is needed when gains = file");
   Matrix gains = read_matrix_csv(o.gains_file).values;
   const bool shape_given = o.agents > 0 || o.partners > 0;
   if (shape_given && (gains.rows() != o.agents || gains.cols() != o.partners)) {
     throw InputError(o.gains_file, "is " + std::to_string(gains.rows()) + "x" +
-                                       std::to_string(gains.cols()) +
-                                       " but scenario.agents x scenario.partners is " +
+                                       std::to_string(gains.cols()) + " but agents x partners is " +
                                        std::to_string(o.agents) + "x" + std::to_string(o.partners));
   }
   return gains;
@@ -203,33 +183,35 @@ void require_every_row_and_column_allowed(const AccessMask& access, const std::s
 
 }  // namespace
 
-std::string to_string(GainsKind kind) { return kind_to_string(kind, kGainsNames); }
-std::string to_string(MassKind kind) { return kind_to_string(kind, kMassNames); }
-std::string to_string(AccessKind kind) { return kind_to_string(kind, kAccessNames); }
+std::string to_string(GainsKind kind) { return word_of(kind, kGainsKindWords); }
+std::string to_string(MassKind kind) { return word_of(kind, kMassKindWords); }
+std::string to_string(AccessKind kind) { return word_of(kind, kAccessKindWords); }
 GainsKind gains_kind_from_string(const std::string& text, const std::string& where) {
-  return kind_from_string(text, where, kGainsNames);
+  return value_of(text, kGainsKindWords, where);
 }
 MassKind mass_kind_from_string(const std::string& text, const std::string& where) {
-  return kind_from_string(text, where, kMassNames);
+  return value_of(text, kMassKindWords, where);
 }
 AccessKind access_kind_from_string(const std::string& text, const std::string& where) {
-  return kind_from_string(text, where, kAccessNames);
+  return value_of(text, kAccessKindWords, where);
 }
+std::vector<std::string> gains_kind_words() { return words_of(kGainsKindWords); }
+std::vector<std::string> mass_kind_words() { return words_of(kMassKindWords); }
+std::vector<std::string> access_kind_words() { return words_of(kAccessKindWords); }
 
 void ScenarioOptions::validate() const {
   if (gains != GainsKind::file) {
-    require(agents >= 1, "scenario.agents", "must be at least 1");
-    require(partners >= 1, "scenario.partners", "must be at least 1");
+    require(agents >= 1, "agents", "must be at least 1");
+    require(partners >= 1, "partners", "must be at least 1");
   }
-  require(gains_scale > 0 && std::isfinite(gains_scale), "scenario.gains_scale", "must be > 0");
-  require(gains_exponent > 0, "scenario.gains_exponent", "must be > 0");
-  require(gains_rank >= 1, "scenario.gains_rank", "must be at least 1");
-  require(budgets_exponent >= 0, "scenario.budgets_exponent", "must be >= 0");
-  require(budgets_spread >= 0, "scenario.budgets_spread", "must be >= 0");
-  require(capacities_exponent >= 0, "scenario.capacities_exponent", "must be >= 0");
-  require(capacities_spread >= 0, "scenario.capacities_spread", "must be >= 0");
-  require(access_density > 0 && access_density <= 1, "scenario.access_density",
-          "must be in (0, 1]");
+  require(gains_scale > 0 && std::isfinite(gains_scale), "gains_scale", "must be > 0");
+  require(gains_exponent > 0, "gains_exponent", "must be > 0");
+  require(gains_rank >= 1, "gains_rank", "must be at least 1");
+  require(budgets_exponent >= 0, "budgets_exponent", "must be >= 0");
+  require(budgets_spread >= 0, "budgets_spread", "must be >= 0");
+  require(capacities_exponent >= 0, "capacities_exponent", "must be >= 0");
+  require(capacities_spread >= 0, "capacities_spread", "must be >= 0");
+  require(access_density > 0 && access_density <= 1, "access_density", "must be in (0, 1]");
 }
 
 ScenarioTraits scenario_traits(const ScenarioOptions& o, std::uint64_t run) {
@@ -280,11 +262,11 @@ TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
   const long n = problem.gains.rows(), m = problem.gains.cols();
   RandomStream budget_rng(o.seed, run, StreamId::budgets);
   problem.budgets = make_masses(o.budgets, o.budgets_exponent, o.budgets_spread, o.budgets_file, n,
-                                budget_rng, "scenario.budgets_file", "scenario.agents");
+                                budget_rng, "budgets_file", "agents");
   RandomStream capacity_rng(o.seed, run, StreamId::capacities);
   problem.capacities =
       make_masses(o.capacities, o.capacities_exponent, o.capacities_spread, o.capacities_file, m,
-                  capacity_rng, "scenario.capacities_file", "scenario.partners");
+                  capacity_rng, "capacities_file", "partners");
   RandomStream access_rng(o.seed, run, StreamId::access);
   switch (o.access) {
     case AccessKind::full:
@@ -296,8 +278,7 @@ TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
       problem.access = random_access(access_rng, n, m, o.access_density);
       break;
     case AccessKind::file: {
-      require(!o.access_file.empty(), "scenario.access_file",
-              "is needed when scenario.access = file");
+      require(!o.access_file.empty(), "access_file", "is needed when access = file");
       AccessMask access = read_access_csv(o.access_file);
       if (access.rows() != n || access.cols() != m) {
         throw InputError(o.access_file, "is " + std::to_string(access.rows()) + "x" +
@@ -310,10 +291,10 @@ TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {
     }
   }
   ProblemSources sources;
-  sources.gains = o.gains == GainsKind::file ? o.gains_file : "scenario.gains";
-  sources.budgets = o.budgets == MassKind::file ? o.budgets_file : "scenario.budgets";
-  sources.capacities = o.capacities == MassKind::file ? o.capacities_file : "scenario.capacities";
-  sources.access = o.access == AccessKind::file ? o.access_file : "scenario.access";
+  sources.gains = o.gains == GainsKind::file ? o.gains_file : "gains";
+  sources.budgets = o.budgets == MassKind::file ? o.budgets_file : "budgets";
+  sources.capacities = o.capacities == MassKind::file ? o.capacities_file : "capacities";
+  sources.access = o.access == AccessKind::file ? o.access_file : "access";
   validate(problem, sources, 1e-9);
   return problem;
 }

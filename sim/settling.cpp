@@ -75,7 +75,6 @@ std::string Settling::brief() const {
   out << ", change between the last two windows " << percent(change) << " (limit "
       << percent(change_limit) << "), drift since burn-in " << percent(drift) << " (limit "
       << percent(drift_limit) << ")";
-  if (!advice.empty()) out << "; " << advice;
   return out.str();
 }
 
@@ -101,7 +100,8 @@ Settling assess_settling(const SettlingTrace& trace, long burn_in, const Settlin
     s.worst_capacity_excess = kNaN;
     s.advice =
         "fewer than two snapshot windows after burn-in cannot show settling: use a smaller "
-        "dynamics.window or more dynamics.rounds";
+        "window or more rounds";
+    s.settings_to_change = {"window", "rounds"};
     return s;
   }
   const bool capacities_met = s.worst_capacity_excess <= 0;
@@ -109,10 +109,17 @@ Settling assess_settling(const SettlingTrace& trace, long burn_in, const Settlin
   const bool no_drift = s.drift <= s.drift_limit;
   s.settled = capacities_met && steady && no_drift;
   if (!s.settled) {
-    s.advice = "play more rounds with a longer burn-in (dynamics.rounds, dynamics.burn_in)";
-    if (!capacities_met) s.advice += "; at low temperature a larger dynamics.price_step helps";
+    s.advice = "play more rounds with a longer burn-in";
+    s.settings_to_change = {"rounds", "burn_in"};
+    if (!capacities_met) {
+      s.advice += "; at low temperature a larger price step helps";
+      s.settings_to_change.push_back("price_step");
+    }
     // With few windows the counted ones still hold the start of the run.
-    if (s.counted_windows < kFewWindows) s.advice += "; or use a smaller dynamics.window";
+    if (s.counted_windows < kFewWindows) {
+      s.advice += "; or use a smaller window";
+      s.settings_to_change.push_back("window");
+    }
   }
   return s;
 }

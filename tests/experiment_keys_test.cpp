@@ -3,6 +3,7 @@
 #include <set>
 
 #include "allocsim/core/error.hpp"
+#include "allocsim/experiments/analysis_settings.hpp"
 #include "allocsim/experiments/experiment.hpp"
 #include "allocsim/experiments/keys.hpp"
 #include "test_files.hpp"
@@ -76,6 +77,18 @@ TEST_CASE("keys valid alone but not together name the later key") {
   const std::string path = write_ini("together", "[dynamics]\nrounds = 10\nburn_in = 10\n");
   CHECK_THROWS_WITH(simulation_settings(experiment_values(path, {})),
                     Catch::StartsWith(path + ":3: dynamics.burn_in"));
+}
+
+TEST_CASE("a lower layer's field is named by its key, where it was given") {
+  // sim/ says "mean_field"; the experiment layer says which key and where.
+  CHECK_THROWS_WITH(
+      simulation_settings(
+          experiment_values("", {{"dynamics.rule", "queue"}, {"dynamics.mean_field", "true"}})),
+      Catch::StartsWith("--dynamics.mean_field: applies to the price and gumbel rules only"));
+  const std::string path =
+      write_ini("threshold", "[analysis]\nbinarize = row-share\nthreshold = 2\n");
+  CHECK_THROWS_WITH(analysis_options(experiment_values(path, {}), 0),
+                    Catch::StartsWith(path + ":3: analysis.threshold: must be in (0, 1]"));
 }
 
 TEST_CASE("the experiment text reads back to the same values") {

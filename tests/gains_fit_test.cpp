@@ -9,8 +9,10 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "test_problems.hpp"
 
 using namespace allocsim;
+using namespace allocsim::testing;
 
 namespace {
 
@@ -44,14 +46,6 @@ Case make_case(std::uint64_t seed, const Vector& lambda) {
   return c;
 }
 
-Matrix draw_counts(const Matrix& coupling, long units, std::uint64_t seed) {
-  RandomStream rng(seed, 2, StreamId::dynamics);
-  Matrix counts = Matrix::Zero(coupling.rows(), coupling.cols());
-  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()), coupling.sum(),
-                  counts.data());
-  return counts;
-}
-
 }  // namespace
 
 TEST_CASE("a noise-free coupling gives back theta/epsilon") {
@@ -72,7 +66,7 @@ TEST_CASE("with the gains as the only feature the fit is 1 / the temperature est
   lambda << 12.0, 0.0;
   const Case c = make_case(9, lambda);
   const ObservedAllocation o =
-      observe_allocation(draw_counts(c.coupling, 5000, 9), c.problem.gains, std::nullopt);
+      observe_allocation(draw_counts(c.coupling, 5000, 9, 2), c.problem.gains, std::nullopt);
   const GainsFitResult fit = fit_gains(o, {c.features[0]});
   const TemperatureResult t = estimate_temperature(o);
   REQUIRE(fit.converged());
@@ -92,7 +86,7 @@ TEST_CASE("the fit recovers theta/epsilon within its standard errors") {
   for (std::uint64_t seed = 1; seed <= 150; ++seed) {
     const Case c = make_case(seed, lambda);
     const ObservedAllocation o =
-        observe_allocation(draw_counts(c.coupling, 4000, seed), c.problem.gains, std::nullopt);
+        observe_allocation(draw_counts(c.coupling, 4000, seed, 2), c.problem.gains, std::nullopt);
     const GainsFitResult r = fit_gains(o, c.features);
     INFO("seed " << seed << ": " << r.brief());
     REQUIRE(r.converged());

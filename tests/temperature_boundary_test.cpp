@@ -11,43 +11,16 @@
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "test_problems.hpp"
 
 using namespace allocsim;
+using namespace allocsim::testing;
 
 namespace {
 
-TransportProblem scenario(GainsKind kind, long n, long m, std::uint64_t seed) {
-  ScenarioOptions options;
-  options.agents = n;
-  options.partners = m;
-  options.gains = kind;
-  options.budgets = MassKind::lognormal;
-  options.capacities = MassKind::lognormal;
-  options.budgets_spread = options.capacities_spread = 0.5;
-  options.seed = seed;
-  return make_scenario(options);
-}
-
-Matrix draw_counts(const Matrix& coupling, long units, std::uint64_t seed) {
-  RandomStream rng(seed, 3, StreamId::dynamics);
-  Matrix counts = Matrix::Zero(coupling.rows(), coupling.cols());
-  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()), coupling.sum(),
-                  counts.data());
-  return counts;
-}
-
-Matrix entropic(const TransportProblem& problem, double epsilon) {
-  EntropicOptions options;
-  options.epsilon = epsilon;
-  options.tolerance = 1e-12;
-  const EntropicResult r = solve_entropic(problem, options);
-  REQUIRE(r.converged());
-  return r.coupling;
-}
-
 // Mass of the entropic coupling off the exact optimum's support.
 double leak(const TransportProblem& problem, const Matrix& support, double epsilon) {
-  return entropic(problem, epsilon)
+  return entropic_coupling(problem, epsilon, 1e-12)
       .cwiseProduct((support.array() == 0).cast<double>().matrix())
       .sum();
 }
@@ -73,7 +46,7 @@ bool covers(const TemperatureResult& r, double epsilon) {
 TEST_CASE(
     "at the optimum the bound runs from 0 to eps_up, where the likelihood ratio is "
     "chi-square's point") {
-  const TransportProblem problem = scenario(GainsKind::trait_distance, 5, 5, 3);
+  const TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 5, 5, 3);
   const ExactResult exact = solve_exact(problem);
   REQUIRE(exact.optimal());
   // Counts exactly proportional to the optimal plan (rounded): at the optimum.
@@ -87,7 +60,7 @@ TEST_CASE(
   REQUIRE(r.ci_high > 0);
   // At eps_up the profile log-likelihood is chi2_1(0.95)/2 below its supremum
   // (the plan itself when the optimum is unique: sum n log p).
-  const Matrix at_bound = entropic(o.problem, r.ci_high);
+  const Matrix at_bound = entropic_coupling(o.problem, r.ci_high, 1e-12);
   double drop = 0;
   for (Eigen::Index k = 0; k < counts.size(); ++k)
     if (o.shares.data()[k] > 0)
@@ -99,7 +72,7 @@ TEST_CASE(
 TEST_CASE(
     "without signal the bound runs from eps_lo to infinity, where the likelihood ratio is "
     "chi-square's point") {
-  const TransportProblem problem = scenario(GainsKind::random, 5, 6, 4);
+  const TransportProblem problem = lognormal_scenario(GainsKind::random, 5, 6, 4);
   Matrix flat(5, 6);
   for (Eigen::Index i = 0; i < 5; ++i)
     for (Eigen::Index j = 0; j < 6; ++j) flat(i, j) = 20 + ((i * 7 + j * 3) % 5);
@@ -113,8 +86,8 @@ TEST_CASE(
   CHECK(std::isinf(r.ci_high));
   REQUIRE(std::isfinite(r.ci_low));
   REQUIRE(r.ci_low > 0);
-  const Matrix at_bound = entropic(o.problem, r.ci_low);
-  const Matrix independent = entropic(o.problem, 1e6 * gain_range(o.problem));
+  const Matrix at_bound = entropic_coupling(o.problem, r.ci_low, 1e-12);
+  const Matrix independent = entropic_coupling(o.problem, 1e6 * gain_range(o.problem), 1e-12);
   double drop = 0;
   for (Eigen::Index k = 0; k < flat.size(); ++k)
     if (o.shares.data()[k] > 0)
@@ -123,8 +96,9 @@ TEST_CASE(
 }
 
 TEST_CASE("epsilon and its interval scale with the gains from 1e-300 to 1e300") {
-  const TransportProblem problem = scenario(GainsKind::trait_distance, 6, 7, 5);
-  const Matrix counts = draw_counts(entropic(problem, 0.1 * gain_range(problem)), 3000, 5);
+  const TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 6, 7, 5);
+  const Matrix counts =
+      draw_counts(entropic_coupling(problem, 0.1 * gain_range(problem), 1e-12), 3000, 5, 3);
   const TemperatureResult base =
       estimate_temperature(observe_allocation(counts, problem.gains, std::nullopt));
   REQUIRE(base.estimated());
@@ -146,7 +120,7 @@ TEST_CASE("epsilon and its interval scale with the gains from 1e-300 to 1e300") 
 }
 
 TEST_CASE("the boundary bounds scale with the gains too") {
-  const TransportProblem problem = scenario(GainsKind::trait_distance, 5, 5, 3);
+  const TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 5, 5, 3);
   const Matrix counts = (solve_exact(problem).coupling * 400).array().round().matrix();
   const TemperatureResult base =
       estimate_temperature(observe_allocation(counts, problem.gains, std::nullopt));
@@ -171,10 +145,11 @@ TEST_CASE("near the optimum the reported sets cover the true epsilon at the nomi
   for (int seed = 1; seed <= cases; ++seed) {
     const long units = 300 + 100 * (seed % 5);
     const TransportProblem problem =
-        scenario(seed % 2 ? GainsKind::trait_distance : GainsKind::random, 4 + seed % 3,
-                 4 + seed % 4, 100 + seed);
+        lognormal_scenario(seed % 2 ? GainsKind::trait_distance : GainsKind::random, 4 + seed % 3,
+                           4 + seed % 4, 100 + seed);
     const double eps = epsilon_for_leak(problem, units, expected_off[seed % 3]);
-    const Matrix counts = draw_counts(entropic(problem, eps), units, 7000 + seed);
+    const Matrix counts =
+        draw_counts(entropic_coupling(problem, eps, 1e-12), units, 7000 + seed, 3);
     const TemperatureResult r =
         estimate_temperature(observe_allocation(counts, problem.gains, std::nullopt));
     INFO("seed " << seed << ": " << r.brief() << " / " << r.message);
@@ -208,12 +183,13 @@ TEST_CASE("near independence the reported sets cover the true epsilon at the nom
   for (int seed = 1; seed <= cases; ++seed) {
     const long units = 500 + 500 * (seed % 4);
     const TransportProblem problem =
-        scenario(seed % 2 ? GainsKind::trait_distance : GainsKind::random, 4 + seed % 4,
-                 4 + seed % 3, 300 + seed);
-    const Matrix flat = entropic(problem, 1e6 * gain_range(problem));
+        lognormal_scenario(seed % 2 ? GainsKind::trait_distance : GainsKind::random, 4 + seed % 4,
+                           4 + seed % 3, 300 + seed);
+    const Matrix flat = entropic_coupling(problem, 1e6 * gain_range(problem), 1e-12);
     const double v0 = conditional_variance(problem.gains, flat);
     const double eps = std::sqrt(units * v0) / signal[seed % 3];
-    const Matrix counts = draw_counts(entropic(problem, eps), units, 9000 + seed);
+    const Matrix counts =
+        draw_counts(entropic_coupling(problem, eps, 1e-12), units, 9000 + seed, 3);
     const TemperatureResult r =
         estimate_temperature(observe_allocation(counts, problem.gains, std::nullopt));
     INFO("seed " << seed << ": " << r.brief());

@@ -10,8 +10,10 @@
 #include "allocsim/core/random.hpp"
 #include "allocsim/sim/engine.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "test_problems.hpp"
 
 using namespace allocsim;
+using namespace allocsim::testing;
 
 namespace {
 
@@ -32,37 +34,6 @@ Matrix plan_from_duals(const Matrix& gains, double eps, std::uint64_t seed) {
   return plan / plan.sum();
 }
 
-TransportProblem scenario(GainsKind kind, long n, long m, std::uint64_t seed) {
-  ScenarioOptions options;
-  options.agents = n;
-  options.partners = m;
-  options.gains = kind;
-  options.budgets = MassKind::lognormal;
-  options.capacities = MassKind::lognormal;
-  options.budgets_spread = options.capacities_spread = 0.5;
-  options.seed = seed;
-  return make_scenario(options);
-}
-
-Matrix draw_counts(const Matrix& coupling, long units, std::uint64_t seed) {
-  RandomStream rng(seed, 1, StreamId::dynamics);
-  Matrix counts = Matrix::Zero(coupling.rows(), coupling.cols());
-  add_multinomial(rng, units, coupling.data(), static_cast<long>(coupling.size()), coupling.sum(),
-                  counts.data());
-  return counts;
-}
-
-Matrix mat(std::initializer_list<std::initializer_list<double>> rows) {
-  Matrix m(rows.size(), rows.begin()->size());
-  Eigen::Index i = 0;
-  for (auto row : rows) {
-    Eigen::Index j = 0;
-    for (double v : row) m(i, j++) = v;
-    ++i;
-  }
-  return m;
-}
-
 }  // namespace
 
 TEST_CASE("a noise-free entropic plan gives back its epsilon") {
@@ -70,7 +41,7 @@ TEST_CASE("a noise-free entropic plan gives back its epsilon") {
     for (double eps : {0.02, 0.15, 1.0, 5.0}) {
       const std::uint64_t seed = 11 + static_cast<std::uint64_t>(eps * 100);
       INFO("gains " << to_string(kind) << ", epsilon " << eps << ", seed " << seed);
-      const TransportProblem problem = scenario(kind, 7, 9, seed);
+      const TransportProblem problem = lognormal_scenario(kind, 7, 9, seed);
       const Matrix plan = plan_from_duals(problem.gains, eps, seed);
       const ObservedAllocation observed = observe_allocation(plan, problem.gains, std::nullopt);
       CHECK_FALSE(observed.counts);
@@ -84,7 +55,7 @@ TEST_CASE("a noise-free entropic plan gives back its epsilon") {
 }
 
 TEST_CASE("a noise-free plan under an access mask gives back its epsilon") {
-  const TransportProblem problem = scenario(GainsKind::random, 6, 8, 5);
+  const TransportProblem problem = lognormal_scenario(GainsKind::random, 6, 8, 5);
   AccessMask access = AccessMask::Ones(6, 8);
   access(0, 1) = access(2, 3) = access(4, 7) = access(5, 0) = 0;
   Matrix plan = plan_from_duals(problem.gains, 0.2, 5);
@@ -98,7 +69,7 @@ TEST_CASE("a noise-free plan under an access mask gives back its epsilon") {
 TEST_CASE("every 2x2 cross-ratio of a Sinkhorn coupling agrees with the estimate") {
   // Closed form: for pi_ij = exp((gains_ij + f_i + g_j)/eps),
   // log(pi_ik pi_jl / (pi_il pi_jk)) = (gains_ik + gains_jl - gains_il - gains_jk) / eps.
-  TransportProblem problem = scenario(GainsKind::trait_distance, 4, 5, 3);
+  TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 4, 5, 3);
   EntropicOptions options;
   options.epsilon = 0.07;
   options.tolerance = 1e-13;
@@ -128,8 +99,8 @@ TEST_CASE(
   // With 4 cells, row, column effects and the gains the log-linear model is
   // saturated: beta_hat = log(n11 n22 / (n12 n21)) / contrast, and
   // var(log odds ratio) = sum 1/n_ij (Woolf 1955; Agresti ch. 3).
-  const Matrix gains = mat({{1.0, 0.2}, {0.1, 0.7}});
-  const Matrix counts = mat({{420, 95}, {130, 355}});
+  const Matrix gains = matrix_of({{1.0, 0.2}, {0.1, 0.7}});
+  const Matrix counts = matrix_of({{420, 95}, {130, 355}});
   const double contrast = 1.0 + 0.7 - 0.2 - 0.1;
   const double log_odds = std::log(420.0 * 355.0 / (95.0 * 130.0));
   const double beta = log_odds / contrast;
@@ -152,10 +123,10 @@ TEST_CASE(
 TEST_CASE("the interval ends sit where the likelihood ratio statistic is chi-square's 95% point") {
   // Recomputes the profile log-likelihood at the ends with fresh solves
   // (sum n_ij log pi_ij), independently of the search.
-  const TransportProblem problem = scenario(GainsKind::rank_product, 5, 6, 21);
+  const TransportProblem problem = lognormal_scenario(GainsKind::rank_product, 5, 6, 21);
   EntropicOptions options;
   options.epsilon = 0.1;
-  const Matrix counts = draw_counts(solve_entropic(problem, options).coupling, 3000, 21);
+  const Matrix counts = draw_counts(solve_entropic(problem, options).coupling, 3000, 21, 1);
   const ObservedAllocation observed = observe_allocation(counts, problem.gains, std::nullopt);
   const TemperatureResult r = estimate_temperature(observed);
   REQUIRE(r.estimated());
@@ -176,7 +147,7 @@ TEST_CASE("the interval ends sit where the likelihood ratio statistic is chi-squ
 }
 
 TEST_CASE("boundaries are reported as statuses") {
-  const TransportProblem problem = scenario(GainsKind::rank_product, 5, 5, 2);
+  const TransportProblem problem = lognormal_scenario(GainsKind::rank_product, 5, 5, 2);
   SECTION("the exact optimum itself: epsilon 0") {
     const ExactResult exact = solve_exact(problem);
     const TemperatureResult r =
@@ -242,7 +213,7 @@ TEST_CASE("bad allocations are refused, naming the cell") {
 }
 
 TEST_CASE("all-zero rows and columns are dropped with a note") {
-  const TransportProblem problem = scenario(GainsKind::random, 5, 6, 8);
+  const TransportProblem problem = lognormal_scenario(GainsKind::random, 5, 6, 8);
   Matrix plan = plan_from_duals(problem.gains, 0.3, 8);
   plan.row(2).setZero();
   plan.col(4).setZero();
@@ -279,12 +250,13 @@ TEST_CASE("the interval covers the true epsilon at the nominal rate", "[slow]") 
     for (std::uint64_t seed = 1; seed <= 60; ++seed) {
       const double eps = epsilons[seed % 4];
       const long n = units[seed % 3];
-      const TransportProblem problem = scenario(kinds[family], 6 + seed % 5, 5 + seed % 7, seed);
+      const TransportProblem problem =
+          lognormal_scenario(kinds[family], 6 + seed % 5, 5 + seed % 7, seed);
       EntropicOptions options;
       options.epsilon = eps * gain_range(problem);
       const EntropicResult truth = solve_entropic(problem, options);
       REQUIRE(truth.converged());
-      const Matrix counts = draw_counts(truth.coupling, n, 1000 * family + seed);
+      const Matrix counts = draw_counts(truth.coupling, n, 1000 * family + seed, 1);
       const TemperatureResult r =
           estimate_temperature(observe_allocation(counts, problem.gains, std::nullopt));
       INFO("family " << to_string(kinds[family]) << ", seed " << seed << ": " << r.brief());
@@ -318,7 +290,7 @@ TEST_CASE("on the price rule the interval covers the choice temperature", "[slow
   double relative_error = 0;
   for (auto kind : {GainsKind::trait_distance, GainsKind::rank_product}) {
     for (std::uint64_t seed = 1; seed <= 20; ++seed) {
-      const TransportProblem problem = scenario(kind, 8, 10, seed);
+      const TransportProblem problem = lognormal_scenario(kind, 8, 10, seed);
       DynamicsOptions dynamics;
       dynamics.rule = RuleKind::price;
       dynamics.temperature = 0.1 * gain_range(problem);
@@ -349,7 +321,7 @@ TEST_CASE("on the queue rule the bias of the estimate is measured", "[slow]") {
   double bias = 0;
   long runs = 0;
   for (std::uint64_t seed = 1; seed <= 20; ++seed) {
-    const TransportProblem problem = scenario(GainsKind::trait_distance, 8, 10, seed);
+    const TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 8, 10, seed);
     DynamicsOptions dynamics;
     dynamics.rule = RuleKind::queue;
     dynamics.temperature = 0.1 * gain_range(problem);

@@ -139,7 +139,7 @@ py::dict sample_nulls(NullModel model, const std::string& function, const py::ob
     nulls.validate();
   } catch (const InputError& e) {
     const std::string where = e.where() == "curveball_trades" ? "trades" : e.where();
-    value_error(where, std::string(e.what()).substr(e.where().size() + 2));
+    value_error(where, e.reason());
   }
   bool keep = true;
   options.read("keep_samples", keep);

@@ -7,6 +7,7 @@
 #include "allocsim/analysis/gains_fit.hpp"
 #include "allocsim/analysis/gains_reconstruction.hpp"
 #include "allocsim/analysis/temperature.hpp"
+#include "allocsim/core/error.hpp"
 #include "arguments.hpp"
 #include "bindings.hpp"
 
@@ -134,7 +135,6 @@ py::object analyze_binding(const py::object& allocation, const py::object& gains
   input.access = access_argument(access, "access");
   AllocationAnalysisOptions analysis;
   options.read("confidence", analysis.temperature.confidence);
-  analysis.temperature.validate();
   analysis.binarize = binarize_options(options);
   if (options.given("nulls")) {
     std::string model;
@@ -147,9 +147,11 @@ py::object analyze_binding(const py::object& allocation, const py::object& gains
     options.read("seed", seed);
     if (seed < 0) value_error("seed", "must be >= 0");
     nulls.seed = static_cast<std::uint64_t>(seed);
-    if (nulls.samples < 2) value_error("null_samples", "must be at least 2");
     analysis.nulls = nulls;
   }
+  check_under_names(
+      [&] { analysis.validate(); },
+      [](const std::string& field) { return field == "samples" ? "null_samples" : field; });
   std::string json;
   {
     py::gil_scoped_release release;

@@ -67,6 +67,10 @@ struct AllocationAnalysisOptions {
   TemperatureOptions temperature;
   BinarizeOptions binarize;
   std::optional<NullOptions> nulls;  // absent: no null comparison
+
+  // Each part's own validate(); throws InputError at the field's name
+  // ("confidence", "threshold", "samples", ...). analyze_allocation calls it.
+  void validate() const;
 };
 
 struct StructureReport {

@@ -19,6 +19,7 @@
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <vector>
 
 #include "allocsim/core/matrix.hpp"
 
@@ -33,6 +34,7 @@ enum class BinarizeRule { positive, row_share, min_count, revealed_advantage };
 std::string to_string(BinarizeRule rule);
 // Throws InputError("binarize", ...) listing the valid words.
 BinarizeRule binarize_rule_from_string(const std::string& text);
+std::vector<std::string> binarize_rule_words();
 
 // The threshold a rule uses when none is given (see the table above).
 double default_threshold(BinarizeRule rule);

@@ -48,10 +48,11 @@
 namespace allocsim {
 
 enum class NullModel { fixed_margins, bicm, curveball };
-// Words: "fixed-margins", "bicm", "curveball".
+// Words: "curveball", "bicm", "fixed-margins".
 std::string to_string(NullModel model);
 // Throws InputError("nulls", ...) listing the valid words.
 NullModel null_model_from_string(const std::string& text);
+std::vector<std::string> null_model_words();
 
 // True when every entry is a whole number (then the matrix is read as counts).
 bool holds_counts(const Matrix& matrix);

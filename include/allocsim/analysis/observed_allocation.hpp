@@ -38,6 +38,7 @@ enum class ValueKind { automatic, counts, shares };
 std::string to_string(ValueKind kind);
 // Throws InputError("values", ...) listing the words.
 ValueKind value_kind_from_string(const std::string& text);
+std::vector<std::string> value_kind_words();
 
 struct ValueReading {
   ValueKind kind = ValueKind::automatic;  // automatic: counts when every entry is whole

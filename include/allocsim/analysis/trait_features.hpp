@@ -34,9 +34,11 @@ struct TraitTable {
 };
 
 enum class TraitFeatureForm { product, negative_squared_distance };
-// Words: "product", "distance".
+// Words: "distance", "product".
 std::string to_string(TraitFeatureForm form);
+// Throws InputError("trait feature form", ...) listing the valid words.
 TraitFeatureForm trait_feature_form_from_string(const std::string& text);
+std::vector<std::string> trait_feature_form_words();
 
 struct TraitFeatures {
   std::vector<Matrix> features;    // rows x columns each

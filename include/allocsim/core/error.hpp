@@ -17,13 +17,32 @@ class InputError : public std::runtime_error {
   // `where` names the file (and line), option or key; `what` says what is
   // wrong and, where possible, what to do.
   InputError(const std::string& where, const std::string& what)
-      : std::runtime_error(where.empty() ? what : where + ": " + what), where_(where) {}
+      : std::runtime_error(where.empty() ? what : where + ": " + what),
+        where_(where),
+        reason_(what) {}
 
   const std::string& where() const { return where_; }
+  // The message without its place.
+  const std::string& reason() const { return reason_; }
+  // The same error at another place: a layer that owns the name of a setting
+  // ("--threshold", "dynamics.temperature") renames the field a lower layer
+  // named ("threshold", "temperature").
+  InputError at(const std::string& where) const { return InputError(where, reason_); }
 
  private:
-  std::string where_;
+  std::string where_, reason_;
 };
+
+// Calls check(); an InputError it throws is re-thrown at name_of(its where()).
+// For a layer that validates a lower layer's options under its own names.
+template <class Check, class NameOf>
+void check_under_names(Check&& check, NameOf&& name_of) {
+  try {
+    check();
+  } catch (const InputError& e) {
+    throw e.at(name_of(e.where()));
+  }
+}
 
 // A file could not be written (disk full, I/O error, permission lost
 // midway): the command line prints it as one line and exits 1. The message

@@ -30,6 +30,7 @@
 
 #include <cstdint>
 #include <string>
+#include <vector>
 
 #include "allocsim/core/matrix.hpp"
 #include "allocsim/core/problem.hpp"
@@ -43,6 +44,7 @@ std::string to_string(BenchmarkSource source);
 // Throws InputError(where, ...) listing the valid words.
 BenchmarkSource benchmark_source_from_string(const std::string& text,
                                              const std::string& where = "--source");
+std::vector<std::string> benchmark_source_words();
 bool is_misspecified(BenchmarkSource source);
 
 // The allocation (whole units, n x m) of case `case_key` drawn at

@@ -46,6 +46,9 @@ const ExperimentKey* find_experiment_key(const std::string& name);
 // The valid key closest to `name` (edit distance on the full name or on the
 // part after the dot).
 std::string nearest_experiment_key(const std::string& name);
+// "section.a, section.b": the keys of a lower layer's option fields (e.g. a
+// Settling's settings_to_change under "dynamics").
+std::string key_list(const std::string& section, const std::vector<std::string>& fields);
 
 // The value of every key, with where each came from. Starts from the
 // defaults; set() checks the key and its value.

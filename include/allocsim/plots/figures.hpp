@@ -38,6 +38,7 @@ std::string to_string(ImageFormat format);  // "png", "svg", "pdf"
 ImageFormat image_format_from_string(
     const std::string& text);                    // throws InputError("--format", ...)
 std::string file_extension(ImageFormat format);  // without the dot
+std::vector<std::string> image_format_words();   // "png", "svg", "pdf"
 
 struct FigureOptions {
   ImageFormat format = ImageFormat::png;  // png: pngcairo; svg: svg; pdf: pdfcairo

@@ -75,8 +75,10 @@ namespace allocsim {
 
 enum class RuleKind { price, gumbel, queue, learn };
 std::string to_string(RuleKind rule);
-// Throws InputError naming dynamics.rule and the valid words.
+// Throws InputError at "rule" listing the valid words.
 RuleKind rule_kind_from_string(const std::string& text);
+// The words of RuleKind, in declaration order.
+std::vector<std::string> rule_kind_words();
 
 struct DynamicsOptions {
   RuleKind rule = RuleKind::price;

@@ -51,14 +51,15 @@ enum class AccessKind { full, threshold, random, file };
 std::string to_string(GainsKind kind);
 std::string to_string(MassKind kind);
 std::string to_string(AccessKind kind);
-// Throw InputError naming the word and listing the valid ones.
-// `where` names the key the word came from.
-GainsKind gains_kind_from_string(const std::string& text,
-                                 const std::string& where = "scenario.gains");
-MassKind mass_kind_from_string(const std::string& text,
-                               const std::string& where = "scenario.budgets");
-AccessKind access_kind_from_string(const std::string& text,
-                                   const std::string& where = "scenario.access");
+// Throw InputError at `where` (the setting the word came from): "'x' is not
+// one of a, b or c".
+GainsKind gains_kind_from_string(const std::string& text, const std::string& where = "gains");
+MassKind mass_kind_from_string(const std::string& text, const std::string& where = "budgets");
+AccessKind access_kind_from_string(const std::string& text, const std::string& where = "access");
+// The words of each, in declaration order (for --help and the key table).
+std::vector<std::string> gains_kind_words();
+std::vector<std::string> mass_kind_words();
+std::vector<std::string> access_kind_words();
 
 struct ScenarioOptions {
   long agents = 20;    // n, rows; >= 1

@@ -17,7 +17,7 @@
 // with p the pooled shares of both windows; both are 0 for mean-field runs.
 //
 // A run settled when the windows after burn-in (those whose first round is
-// past dynamics.burn_in; at least two are needed) show no transient:
+// past the burn-in; at least two are needed) show no transient:
 //   1. every one has a capacity error of at most capacity_tolerance + its
 //      capacity allowance (the capacities were met before counting began);
 //   2. the change between the last two is at most change_tolerance + its
@@ -62,9 +62,14 @@ struct Settling {
   double change_limit = 0;           // tolerance + allowance the change was held to
   double drift = 0;                  // between the first counted window and the last
   double drift_limit = 0;
-  std::string advice;  // what to change when not settled; empty otherwise
+  // When not settled: what to change, in words, and the DynamicsOptions
+  // fields it names ("rounds", "burn_in", "price_step", "window"); the layer
+  // that owns their names (e.g. the experiment keys dynamics.*) shows them.
+  std::string advice;
+  std::vector<std::string> settings_to_change;
 
-  // One line, e.g. "settled: capacity error 0.3% (limit 1.2%), change ...".
+  // One line of the measurements, e.g. "settled: capacity error 0.3% (limit
+  // 1.2%), change ..."; without the advice.
   std::string brief() const;
 };
 
