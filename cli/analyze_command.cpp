@@ -142,11 +142,14 @@ void print_report(const AllocationReport& report,
       json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
     std::cout << json.str() << "\n";
   } else {
-    print_allocation_report(std::cout, report);
+    std::ostringstream text;
+    print_allocation_report(text, report);
+    std::cout << with_option_names(text.str());
     if (reconstruction) print_gains_reconstruction(std::cout, *reconstruction);
   }
   if (!vm.count("json")) return;  // the text report says both
-  if (!report.observed.warning.empty()) std::cerr << "warning: " << report.observed.warning << "\n";
+  if (!report.observed.warning.empty())
+    std::cerr << "warning: " << with_option_names(report.observed.warning) << "\n";
   if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
 }
 

@@ -6,6 +6,7 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
 #include "commands.hpp"
+#include "options.hpp"
 
 namespace {
 
@@ -55,7 +56,8 @@ int main(int argc, char** argv) {
       std::string message = e.what();
       const std::string prefix = "allocsim " + name + ": ";
       if (message.rfind(prefix, 0) == 0) message.erase(0, prefix.size());
-      std::cerr << "allocsim " << name << ": error: " << message << "\n";
+      std::cerr << "allocsim " << name << ": error: " << allocsim::cli::with_option_names(message)
+                << "\n";
       return kExitUsage;
     } catch (const std::exception& e) {
       std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";

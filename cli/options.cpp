@@ -83,4 +83,20 @@ std::vector<std::pair<std::string, std::string>> experiment_values_given(
   return given;
 }
 
+std::string with_option_names(std::string text) {
+  static const std::pair<const char*, const char*> kOptions[] = {
+      {"values = shares", "--values shares"},
+      {"values = counts", "--values counts"},
+      {"units = N", "--units N"},
+      {"missing = zero", "--missing zero"},
+      {"(rescale)", "(--rescale)"},
+      {"raise mass_units", "raise --mass-units"}};
+  for (const auto& [setting, option] : kOptions) {
+    const std::string from = setting;
+    for (auto at = text.find(from); at != std::string::npos; at = text.find(from, at))
+      text.replace(at, from.size(), option);
+  }
+  return text;
+}
+
 }  // namespace allocsim::cli

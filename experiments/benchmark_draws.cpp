@@ -12,27 +12,11 @@
 namespace allocsim {
 namespace {
 
-std::string trim(const std::string& s) {
-  const auto first = s.find_first_not_of(" \t");
-  if (first == std::string::npos) return "";
-  return s.substr(first, s.find_last_not_of(" \t") - first + 1);
-}
-
-double read_number(const std::string& item, const std::string& where, const std::string& text) {
-  const std::string t = trim(item);
-  char* end = nullptr;
-  const double value = std::strtod(t.c_str(), &end);
-  if (t.empty() || *end != '\0' || !std::isfinite(value)) {
-    throw InputError(where, "'" + t + "' in '" + text + "' is not a finite number");
-  }
-  return value;
-}
-
 long read_whole(const std::string& item, const std::string& where, const std::string& text) {
-  const double value = read_number(item, where, text);
+  const double value = finite_number_in(item, where, text);
   if (value != std::floor(value) || value < 2 || value > 100000) {
-    throw InputError(where,
-                     "'" + trim(item) + "' in '" + text + "' is not a whole number in [2, 100000]");
+    throw InputError(where, "'" + trim_blanks(item) + "' in '" + text +
+                                "' is not a whole number in [2, 100000]");
   }
   return static_cast<long>(value);
 }
@@ -45,13 +29,13 @@ std::vector<std::string> split_commas(const std::string& text) {
     if (c == '(') ++depth;
     if (c == ')') --depth;
     if (c == ',' && depth == 0) {
-      items.push_back(trim(item));
+      items.push_back(trim_blanks(item));
       item.clear();
     } else {
       item += c;
     }
   }
-  items.push_back(trim(item));
+  items.push_back(trim_blanks(item));
   return items;
 }
 
@@ -72,12 +56,12 @@ double NumberLaw::value(long index, RandomStream& rng) const {
 NumberLaw parse_number_law(const std::string& text, const std::string& where, bool positive) {
   static const std::regex drawn(R"(^\s*(loguniform|uniform)\s*\(([^,()]*),([^,()]*)\)\s*$)");
   NumberLaw law;
-  law.text = trim(text);
+  law.text = trim_blanks(text);
   std::smatch m;
   if (std::regex_match(text, m, drawn)) {
     law.kind = m[1] == "loguniform" ? NumberLaw::Kind::loguniform : NumberLaw::Kind::uniform;
-    law.low = read_number(m[2], where, law.text);
-    law.high = read_number(m[3], where, law.text);
+    law.low = finite_number_in(m[2], where, law.text);
+    law.high = finite_number_in(m[3], where, law.text);
     if (!(law.low < law.high)) {
       throw InputError(where, "'" + law.text + "' needs its lower end below its upper end");
     }
@@ -93,7 +77,7 @@ NumberLaw parse_number_law(const std::string& text, const std::string& where, bo
                                 "loguniform(a, b) or uniform(a, b)");
   }
   for (const std::string& item : expand_sweep_values(text, where)) {
-    const double value = read_number(item, where, law.text);
+    const double value = finite_number_in(item, where, law.text);
     if (positive && !(value > 0))
       throw InputError(where, "'" + item + "' in '" + law.text + "' is not > 0");
     law.values.push_back(value);
@@ -109,7 +93,7 @@ ShapeLaw parse_shape_law(const std::string& text, const std::string& where) {
   static const std::regex item_form(
       R"(^\s*(agents|partners)\s*=\s*([^.]+?)\s*(?:\.\.\s*(.+?))?\s*$)");
   ShapeLaw shape;
-  shape.text = trim(text);
+  shape.text = trim_blanks(text);
   bool seen_agents = false, seen_partners = false;
   for (const std::string& item : split_commas(text)) {
     std::smatch m;
@@ -142,7 +126,7 @@ std::vector<MarginalLaw> parse_marginal_laws(const std::string& text, const std:
   for (const std::string& item : split_commas(text)) {
     std::smatch m;
     if (item.empty() || !std::regex_match(item, m, item_form)) {
-      throw InputError(where, "'" + item + "' in '" + trim(text) +
+      throw InputError(where, "'" + item + "' in '" + trim_blanks(text) +
                                   "' is not uniform, zipf(EXPONENT) or lognormal(SIGMA)");
     }
     MarginalLaw law;
@@ -152,7 +136,7 @@ std::vector<MarginalLaw> parse_marginal_laws(const std::string& text, const std:
       throw InputError(where, "'" + item + "': uniform takes no parameter");
     }
     law.parameter = law.kind == MassKind::zipf ? 1.0 : 0.5;
-    if (m[2].matched) law.parameter = read_number(m[2], where, item);
+    if (m[2].matched) law.parameter = finite_number_in(m[2], where, item);
     if (!(law.parameter >= 0))
       throw InputError(where, "'" + item + "': the parameter must be >= 0");
     laws.push_back(law);

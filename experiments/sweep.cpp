@@ -11,22 +11,6 @@
 namespace allocsim {
 namespace {
 
-std::string trim(const std::string& s) {
-  const auto first = s.find_first_not_of(" \t");
-  if (first == std::string::npos) return "";
-  return s.substr(first, s.find_last_not_of(" \t") - first + 1);
-}
-
-double parse_real(const std::string& text, const std::string& where, const std::string& spec) {
-  char* end = nullptr;
-  const std::string t = trim(text);
-  const double value = std::strtod(t.c_str(), &end);
-  if (t.empty() || *end != '\0' || !std::isfinite(value)) {
-    throw InputError(where, "'" + t + "' in '" + spec + "' is not a finite number");
-  }
-  return value;
-}
-
 // 12 significant digits: enough for any sweep, and free of rounding noise
 // such as 0.30000000000000004.
 std::string sweep_number(double value) {
@@ -37,9 +21,9 @@ std::string sweep_number(double value) {
 
 std::vector<std::string> spaced_values(const std::string& kind, const std::smatch& m,
                                        const std::string& where, const std::string& spec) {
-  const double start = parse_real(m[2], where, spec);
-  const double stop = parse_real(m[3], where, spec);
-  const double count_value = parse_real(m[4], where, spec);
+  const double start = finite_number_in(m[2], where, spec);
+  const double stop = finite_number_in(m[3], where, spec);
+  const double count_value = finite_number_in(m[4], where, spec);
   const long count = static_cast<long>(count_value);
   if (count < 1 || count != count_value) {
     throw InputError(where, "the count in '" + spec + "' must be a whole number >= 1");
@@ -84,6 +68,23 @@ SweepCombine sweep_combine_from_string(const std::string& text, const std::strin
   return value_of(text, kSweepCombineWords, where);
 }
 
+std::string trim_blanks(const std::string& text) {
+  const auto first = text.find_first_not_of(" \t");
+  if (first == std::string::npos) return "";
+  return text.substr(first, text.find_last_not_of(" \t") - first + 1);
+}
+
+double finite_number_in(const std::string& item, const std::string& where,
+                        const std::string& spec) {
+  char* end = nullptr;
+  const std::string t = trim_blanks(item);
+  const double value = std::strtod(t.c_str(), &end);
+  if (t.empty() || *end != '\0' || !std::isfinite(value)) {
+    throw InputError(where, "'" + t + "' in '" + spec + "' is not a finite number");
+  }
+  return value;
+}
+
 std::vector<std::string> expand_sweep_values(const std::string& spec, const std::string& where) {
   static const std::regex spaced(R"(^\s*(linear|log)\s*\(([^,]*),([^,]*),([^,]*)\)\s*$)");
   static const std::regex range(R"(^\s*(-?\d+)\s*\.\.\s*(-?\d+)\s*$)");
@@ -101,7 +102,7 @@ std::vector<std::string> expand_sweep_values(const std::string& spec, const std:
   std::size_t begin = 0;
   for (;;) {
     const std::size_t comma = spec.find(',', begin);
-    const std::string item = trim(spec.substr(begin, comma - begin));
+    const std::string item = trim_blanks(spec.substr(begin, comma - begin));
     if (item.empty()) throw InputError(where, "'" + spec + "' has an empty item");
     values.push_back(item);
     if (comma == std::string::npos) break;

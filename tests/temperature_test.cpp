@@ -34,6 +34,22 @@ Matrix plan_from_duals(const Matrix& gains, double eps, std::uint64_t seed) {
   return plan / plan.sum();
 }
 
+// A run of `rule` at T = 10% of the gain range on an 8 x 10 scenario (300
+// rounds of 200 units, 100 of burn-in) and the temperature estimated from it.
+std::pair<double, TemperatureResult> estimate_on_rule(RuleKind rule, GainsKind kind,
+                                                      std::uint64_t seed) {
+  const TransportProblem problem = lognormal_scenario(kind, 8, 10, seed);
+  DynamicsOptions dynamics;
+  dynamics.rule = rule;
+  dynamics.temperature = 0.1 * gain_range(problem);
+  dynamics.rounds = 300;
+  dynamics.burn_in = 100;
+  dynamics.units = 200;
+  const RunResult run = run_dynamics(problem, dynamics, seed, 0);
+  return {dynamics.temperature,
+          estimate_temperature(observe_allocation(run.total, problem.gains, std::nullopt))};
+}
+
 }  // namespace
 
 TEST_CASE("a noise-free entropic plan gives back its epsilon") {
@@ -290,21 +306,12 @@ TEST_CASE("on the price rule the interval covers the choice temperature", "[slow
   double relative_error = 0;
   for (auto kind : {GainsKind::trait_distance, GainsKind::rank_product}) {
     for (std::uint64_t seed = 1; seed <= 20; ++seed) {
-      const TransportProblem problem = lognormal_scenario(kind, 8, 10, seed);
-      DynamicsOptions dynamics;
-      dynamics.rule = RuleKind::price;
-      dynamics.temperature = 0.1 * gain_range(problem);
-      dynamics.rounds = 300;
-      dynamics.burn_in = 100;
-      dynamics.units = 200;
-      const RunResult run = run_dynamics(problem, dynamics, seed, 0);
-      const TemperatureResult r =
-          estimate_temperature(observe_allocation(run.total, problem.gains, std::nullopt));
+      const auto [temperature, r] = estimate_on_rule(RuleKind::price, kind, seed);
       INFO("price rule, seed " << seed << ": " << r.brief());
       REQUIRE(r.estimated());
       ++runs;
-      covered += r.ci_low <= dynamics.temperature && dynamics.temperature <= r.ci_high;
-      relative_error += (r.epsilon - dynamics.temperature) / dynamics.temperature;
+      covered += r.ci_low <= temperature && temperature <= r.ci_high;
+      relative_error += (r.epsilon - temperature) / temperature;
     }
   }
   const double rate = static_cast<double>(covered) / runs;
@@ -321,19 +328,11 @@ TEST_CASE("on the queue rule the bias of the estimate is measured", "[slow]") {
   double bias = 0;
   long runs = 0;
   for (std::uint64_t seed = 1; seed <= 20; ++seed) {
-    const TransportProblem problem = lognormal_scenario(GainsKind::trait_distance, 8, 10, seed);
-    DynamicsOptions dynamics;
-    dynamics.rule = RuleKind::queue;
-    dynamics.temperature = 0.1 * gain_range(problem);
-    dynamics.rounds = 300;
-    dynamics.burn_in = 100;
-    dynamics.units = 200;
-    const RunResult run = run_dynamics(problem, dynamics, seed, 0);
-    const TemperatureResult r =
-        estimate_temperature(observe_allocation(run.total, problem.gains, std::nullopt));
+    const auto [temperature, r] =
+        estimate_on_rule(RuleKind::queue, GainsKind::trait_distance, seed);
     INFO("queue rule, seed " << seed << ": " << r.brief());
     REQUIRE(r.estimated());
-    bias += (r.epsilon - dynamics.temperature) / dynamics.temperature;
+    bias += (r.epsilon - temperature) / temperature;
     ++runs;
   }
   std::cout << "queue rule: mean relative bias of epsilon against T " << bias / runs << "\n";

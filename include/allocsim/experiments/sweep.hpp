@@ -32,6 +32,13 @@ enum class SweepCombine { grid, zip };
 std::string to_string(SweepCombine combine);
 SweepCombine sweep_combine_from_string(const std::string& text, const std::string& where);
 
+// `text` without leading and trailing blanks and tabs.
+std::string trim_blanks(const std::string& text);
+
+// The finite number one item of a specification holds (blanks around it
+// allowed); InputError at `where`: "'x' in 'spec' is not a finite number".
+double finite_number_in(const std::string& item, const std::string& where, const std::string& spec);
+
 // Expands one axis specification: a list "a, b, c", an integer range
 // "first..last" (inclusive, either direction), "linear(start, stop, count)"
 // or "log(start, stop, count)" (start, stop > 0). Throws InputError naming
