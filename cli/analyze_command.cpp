@@ -153,12 +153,22 @@ void print_report(const AllocationReport& report,
   if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
 }
 
-void write_exports(const AllocationReport& report, const po::variables_map& vm) {
+// Every file written into --export-dir, named on stderr.
+void write_exports(const AllocationReport& report,
+                   const std::optional<GainsReconstructionReport>& reconstruction,
+                   const po::variables_map& vm) {
   if (!vm.count("export-dir")) return;
-  const std::vector<std::string> written =
-      export_report(report, vm["export-dir"].as<std::string>());
-  std::cerr << "wrote " << written.size() << " files into " << vm["export-dir"].as<std::string>()
-            << "\n";
+  const std::string folder = vm["export-dir"].as<std::string>();
+  std::vector<std::string> written = export_report(report, folder);
+  if (reconstruction) {
+    const std::vector<std::string> more =
+        export_gains_reconstruction(*reconstruction, report.values.sum(), folder);
+    written.insert(written.end(), more.begin(), more.end());
+  }
+  std::cerr << "wrote " << written.size() << " files into " << folder << ":";
+  for (std::size_t k = 0; k < written.size(); ++k)
+    std::cerr << (k == 0 ? " " : ", ") << std::filesystem::path(written[k]).filename().string();
+  std::cerr << "\n";
 }
 
 // Refuses, before any analysis, a --save or an export of --export-dir that
@@ -184,6 +194,7 @@ void require_outputs_apart_from_inputs(const po::variables_map& vm) {
 // `--save obs.h5`: a results file with one run holding the field matrix, its
 // labels, the gains when given, and the analysis, like a simulated run.
 void save_results(const AllocationInput& in, const AllocationReport& report,
+                  const std::optional<GainsReconstructionReport>& reconstruction,
                   const po::variables_map& vm) {
   if (!vm.count("save")) return;
   const std::string path = vm["save"].as<std::string>();
@@ -207,9 +218,12 @@ void save_results(const AllocationInput& in, const AllocationReport& report,
     run.write_scenario(scenario);
   }
   run.write_report(report);
+  if (reconstruction) run.write_gains_reconstruction(*reconstruction, report.observed);
   run.set_text(layout::kStatus, layout::kStatusComplete);
   file.commit();
-  std::cerr << "saved the matrix and its analysis as run " << run_name(0) << " of " << path << "\n";
+  std::cerr << "saved the matrix and its analysis"
+            << (reconstruction ? " (with the gains reconstruction)" : "") << " as run "
+            << run_name(0) << " of " << path << "\n";
 }
 
 int exit_code(const AllocationReport& report) {
@@ -370,7 +384,8 @@ int analyze_command(const Arguments& args) {
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
-    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing"})
+    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing", "features",
+                                 "row-traits", "column-traits", "latent-rank"})
       if (vm.count(csv_only))
         throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))
@@ -385,10 +400,8 @@ int analyze_command(const Arguments& args) {
   const AllocationReport report = analyze_allocation(input, analyze_options);
   const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
   print_report(report, reconstruction, vm);
-  write_exports(report, vm);
-  if (reconstruction && vm.count("export-dir"))
-    export_gains_reconstruction(*reconstruction, vm["export-dir"].as<std::string>());
-  save_results(input, report, vm);
+  write_exports(report, reconstruction, vm);
+  save_results(input, report, reconstruction, vm);
   return exit_code(report);
 }
 

@@ -9,7 +9,9 @@
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/plots/figure_data.hpp"
+#include "allocsim/plots/latent_score_figure.hpp"
 #include "allocsim/results/layout.hpp"
+#include "allocsim/results/reconstruction_reader.hpp"
 #include "allocsim/results/run_records.hpp"
 
 namespace allocsim::plots {
@@ -229,6 +231,25 @@ void draw_null_distributions(PlotContext& context, const ResultsReader& reader,
                                       context.options));
 }
 
+// The latent scores of a stored gains reconstruction (analyze --latent-rank
+// ... --save, or a sweep with analysis.latent_rank).
+void draw_latent(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
+  const std::optional<GainsReconstructionReport> reconstruction =
+      read_gains_reconstruction(reader, run.name);
+  if (!reconstruction) return;
+  const std::string source =
+      is_observed(run) ? file_name_of(*run.text(layout::kObservedAllocation)) : run_caption(run);
+  const std::optional<LatentScoreMap> figure = latent_score_map(*reconstruction, source);
+  if (!figure) {
+    if (reconstruction->latent)
+      context.notes << "note: " << run.name << " holds a latent fit of rank 0 (independence): "
+                    << "no latent scores to draw\n";
+    return;
+  }
+  context.record(draw_latent_scores(
+      *figure, context.stem(file_name_part(run.name) + "-latent-scores"), context.options));
+}
+
 void draw_trajectories(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
   const std::string figure_name = "trajectories of " + run.name;
   if (!reader.has(run.name, layout::kRoundEnd))
@@ -414,6 +435,7 @@ std::vector<std::string> draw_results_figures(const ResultsReader& reader,
   draw_heatmaps(context, reader, chosen);
   draw_links(context, reader, chosen);
   draw_null_distributions(context, reader, chosen);
+  draw_latent(context, reader, chosen);
   if (is_observed(chosen)) return context.written;  // one matrix: no trajectories, no sweeps
   draw_trajectories(context, reader, chosen);
   draw_metric(context, runs, layout::kNodf, "NODF");

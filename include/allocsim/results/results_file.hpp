@@ -18,6 +18,7 @@
 #include <vector>
 
 #include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/analysis/gains_reconstruction.hpp"
 #include "allocsim/core/matrix.hpp"
 #include "allocsim/core/problem.hpp"
 #include "allocsim/sim/engine.hpp"
@@ -57,6 +58,14 @@ class RunWriter {
   // (these become /summary columns in a sweep), the exact and entropic
   // couplings and the display order as datasets.
   void write_report(const AllocationReport& report);
+  // <run>/analysis/reconstruction (layout.hpp): labels, the model table, the
+  // latent scores and strengths, the feature weights and the fitted
+  // couplings (input shape of `observed`), and as attributes of the analysis
+  // group the latent rank, sigma_1 and, when the report carries them, the
+  // recovery measures (/summary columns of a sweep). Call after
+  // write_report, which replaces the analysis group.
+  void write_gains_reconstruction(const GainsReconstructionReport& report,
+                                  const ObservedAllocation& observed);
   // An empty <run>/analysis group (a run not analysed yet); replaces any.
   void clear_analysis();
   // Creates <run>/allocation with empty, extendable snapshots and round_end;
