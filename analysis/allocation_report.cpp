@@ -243,6 +243,7 @@ AllocationReport analyze_allocation(const AllocationInput& in,
   report.agent_labels = in.agent_labels;
   report.partner_labels = in.partner_labels;
   report.matching = in.matching;
+  report.not_stationary = in.not_stationary;
   report.values = restrict_to_kept(in.allocation, report.observed);
   report.links = binarize(read_matrix(report), options.binarize);
   report.binarize_rule = describe(options.binarize);
@@ -393,7 +394,10 @@ JsonObject allocation_report_json(const AllocationReport& r) {
   json.add("values", values_json(o));
   if (!o.note.empty()) json.add("note", o.note);
   json.add("gains", o.has_gains);
-  json.add("temperature", temperature_json(r.temperature));
+  JsonObject temperature = temperature_json(r.temperature);
+  if (!r.not_stationary.empty())
+    temperature.add("stationary", false).add("not_stationary", r.not_stationary);
+  json.add("temperature", temperature);
   add_couplings_json(r, json);
   json.add("structure", structure_json(r));
   json.add("concentration", concentration_json(r.concentration));
@@ -424,6 +428,8 @@ void print_temperature(std::ostream& out, const AllocationReport& r) {
   const ObservedAllocation& o = r.observed;
   const TemperatureResult& t = r.temperature;
   out << "temperature: " << t.brief() << "\n";
+  if (!r.not_stationary.empty() && o.has_gains)
+    out << "  caution: fitted to a non-stationary allocation (see the warning above)\n";
   if (!o.has_gains || t.status == TemperatureStatus::not_identified) return;
   if (!t.message.empty() && t.estimated()) out << "  note: " << t.message << "\n";
   out << "  gain: observed " << t.observed_gain << ", exact optimum " << t.optimum_gain
@@ -462,6 +468,7 @@ void print_orderings(std::ostream& out, const AllocationReport& r) {
 void print_allocation_report(std::ostream& out, const AllocationReport& r) {
   out.precision(4);
   print_header(out, r);
+  if (!r.not_stationary.empty()) out << "warning: " << r.not_stationary << "\n";
   print_temperature(out, r);
   print_concentration(out, r.concentration);
   out << "structure (" << r.binarize_rule << "): connectance " << r.structure.connectance

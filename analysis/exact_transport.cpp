@@ -466,7 +466,7 @@ std::string unshipped_masses(const TransportProblem& p, const Matrix& coupling, 
             list(partners);
   }
   return text + " lie below total/mass_units (" + format_mass(1.0 / units) +
-         " of the total mass) and were left unshipped; raise mass_units (solve --mass-units, at "
+         " of the total mass) and were left unshipped; raise mass_units (at "
          "most 1e15)";
 }
 

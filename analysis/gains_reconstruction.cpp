@@ -1,5 +1,6 @@
 #include "allocsim/analysis/gains_reconstruction.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <iomanip>
 #include <limits>
@@ -20,6 +21,8 @@ std::vector<std::string> kept_labels(const std::vector<std::string>& labels,
                       : std::string(word) + " " + std::to_string(k + 1));
   return out;
 }
+
+std::string number(double x, int precision = 4);
 
 JsonObject scores_json(const Matrix& scores, const std::vector<std::string>& labels) {
   JsonObject out;
@@ -74,7 +77,42 @@ JsonObject latent_json(const LatentAssociationResult& latent, const GainsReconst
   return out;
 }
 
-std::string number(double x, int precision = 4) {
+// Characters shown for UTF-8 text (continuation bytes do not count).
+std::size_t display_width(const std::string& text) {
+  std::size_t width = 0;
+  for (const char c : text) width += (static_cast<unsigned char>(c) & 0xC0) != 0x80;
+  return width;
+}
+
+// `text` followed by spaces up to `width` shown characters (at least one space).
+std::string padded(const std::string& text, std::size_t width) {
+  return text + std::string(width > display_width(text) ? width - display_width(text) : 0, ' ') +
+         " ";
+}
+
+std::size_t widest(const std::vector<std::string>& labels, std::size_t at_least) {
+  std::size_t width = at_least;
+  for (const std::string& label : labels) width = std::max(width, display_width(label));
+  return width;
+}
+
+// One line per label: the label padded to the longest, then one number per
+// dimension in columns headed "dimension 1", "dimension 2", ...
+void print_scores(std::ostream& out, const char* what, const Matrix& scores,
+                  const std::vector<std::string>& labels) {
+  const std::size_t width = widest(labels, 5);
+  out << "    " << padded(what + std::string(" scores"), width + 2);
+  for (Eigen::Index k = 0; k < scores.cols(); ++k)
+    out << std::setw(12) << "dimension " + std::to_string(k + 1);
+  out << "\n";
+  for (Eigen::Index i = 0; i < scores.rows(); ++i) {
+    out << "      " << padded(labels[static_cast<std::size_t>(i)], width);
+    for (Eigen::Index k = 0; k < scores.cols(); ++k) out << std::setw(12) << number(scores(i, k));
+    out << "\n";
+  }
+}
+
+std::string number(double x, int precision) {
   if (std::isnan(x)) return "n/a";
   if (std::isinf(x)) return x > 0 ? "infinity" : "-infinity";
   std::ostringstream out;
@@ -127,6 +165,14 @@ JsonObject gains_reconstruction_json(const GainsReconstructionReport& report) {
   if (report.features) out.add("features", features_json(*report.features));
   if (report.latent) out.add("latent", latent_json(*report.latent, report));
   out.add("models", model_table_json(report.models));
+  if (report.recovery) {
+    JsonObject recovery;
+    recovery.add("latent_correlation", report.recovery->latent_correlation)
+        .add("latent_slope", report.recovery->latent_slope)
+        .add("features_correlation", report.recovery->features_correlation)
+        .add("features_slope", report.recovery->features_slope);
+    out.add("recovery", recovery);
+  }
   return out;
 }
 
@@ -137,12 +183,12 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
     const GainsFitResult& f = *report.features;
     out << "  features: " << to_string(f.status) << " after " << f.iterations << " Newton steps"
         << (f.message.empty() ? "" : ": " + f.message) << "\n";
+    const std::size_t width = widest(f.names, 8);
     for (Eigen::Index k = 0; k < f.theta_over_epsilon.size(); ++k)
-      out << "    " << std::left << std::setw(24) << f.names[static_cast<std::size_t>(k)]
-          << std::right << " weight " << number(f.theta_over_epsilon(k)) << "  (se "
-          << number(f.standard_errors(k)) << "; " << number(100 * f.confidence, 3)
-          << "% likelihood-ratio interval " << number(f.ci_low(k)) << " to " << number(f.ci_high(k))
-          << ")\n";
+      out << "    " << padded(f.names[static_cast<std::size_t>(k)], width) << "weight "
+          << number(f.theta_over_epsilon(k)) << "  (se " << number(f.standard_errors(k)) << "; "
+          << number(100 * f.confidence, 3) << "% likelihood-ratio interval " << number(f.ci_low(k))
+          << " to " << number(f.ci_high(k)) << ")\n";
     out << "    deviance " << number(f.fit.deviance, 6) << " on " << f.fit.degrees_of_freedom
         << " degrees of freedom\n";
   }
@@ -151,19 +197,8 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
     out << "  latent: " << l.brief() << "\n";
     if (l.rank > 0) {
       out << "    " << strength_sentence(l) << "\n";
-      const auto scores = [&](const char* what, const Matrix& s,
-                              const std::vector<std::string>& labels) {
-        out << "    " << what << " scores (dimension 1" << (s.cols() > 1 ? ", 2, ..." : "")
-            << "):\n";
-        for (Eigen::Index i = 0; i < s.rows(); ++i) {
-          out << "      " << std::left << std::setw(20) << labels[static_cast<std::size_t>(i)]
-              << std::right;
-          for (Eigen::Index k = 0; k < s.cols(); ++k) out << " " << std::setw(9) << number(s(i, k));
-          out << "\n";
-        }
-      };
-      scores("row", l.row_scores, report.row_labels);
-      scores("column", l.column_scores, report.column_labels);
+      print_scores(out, "row", l.row_scores, report.row_labels);
+      print_scores(out, "column", l.column_scores, report.column_labels);
     }
   }
   if (report.models.size() > 2) {
@@ -175,22 +210,64 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
   }
 }
 
-double correlation_after_row_column_effects(const ObservedAllocation& o, const Matrix& a,
-                                            const Matrix& b) {
+namespace {
+
+// Sums of squares and products of the residuals of a and b (after row and
+// column constants) over the allowed cells, about their means.
+struct ResidualMoments {
+  double saa = 0, sbb = 0, sab = 0;
+};
+
+ResidualMoments residual_moments(const ObservedAllocation& o, const Matrix& a, const Matrix& b) {
   const Matrix allowed = allowed_cells_of(o);
   const Matrix ra = additive_residual(a, allowed), rb = additive_residual(b, allowed);
   const double cells = allowed.sum();
   const double ma = ra.sum() / cells, mb = rb.sum() / cells;
-  double saa = 0, sbb = 0, sab = 0;
+  ResidualMoments m;
   for (Eigen::Index k = 0; k < ra.size(); ++k) {
     if (!(allowed.data()[k] > 0)) continue;
     const double x = ra.data()[k] - ma, y = rb.data()[k] - mb;
-    saa += x * x;
-    sbb += y * y;
-    sab += x * y;
+    m.saa += x * x;
+    m.sbb += y * y;
+    m.sab += x * y;
   }
-  if (!(saa > 0 && sbb > 0)) return std::numeric_limits<double>::quiet_NaN();
-  return sab / std::sqrt(saa * sbb);
+  return m;
+}
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+}  // namespace
+
+double correlation_after_row_column_effects(const ObservedAllocation& o, const Matrix& a,
+                                            const Matrix& b) {
+  const ResidualMoments m = residual_moments(o, a, b);
+  if (!(m.saa > 0 && m.sbb > 0)) return kNaN;
+  return m.sab / std::sqrt(m.saa * m.sbb);
+}
+
+Matrix fitted_feature_gains(const ObservedAllocation& o, const GainsReconstructionInput& input,
+                            const GainsFitResult& fit) {
+  Matrix sum = Matrix::Zero(o.shares.rows(), o.shares.cols());
+  for (std::size_t k = 0; k < input.features.size(); ++k)
+    sum += fit.theta_over_epsilon(static_cast<Eigen::Index>(k)) *
+           restrict_to_kept(input.features[k], o);
+  return sum;
+}
+
+GainsRecovery gains_recovery(const ObservedAllocation& o, const GainsReconstructionInput& input,
+                             const GainsReconstructionReport& report, const Matrix& truth) {
+  GainsRecovery recovery;
+  const auto measure = [&](const Matrix& reconstructed, double& correlation, double& slope) {
+    const ResidualMoments m = residual_moments(o, reconstructed, truth);
+    correlation = m.saa > 0 && m.sbb > 0 ? m.sab / std::sqrt(m.saa * m.sbb) : kNaN;
+    slope = m.sbb > 0 ? m.sab / m.sbb : kNaN;
+  };
+  if (report.latent && report.latent->rank > 0)
+    measure(report.latent->association, recovery.latent_correlation, recovery.latent_slope);
+  if (report.features)
+    measure(fitted_feature_gains(o, input, *report.features), recovery.features_correlation,
+            recovery.features_slope);
+  return recovery;
 }
 
 }  // namespace allocsim

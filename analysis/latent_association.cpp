@@ -13,6 +13,13 @@
 namespace allocsim {
 namespace {
 
+std::string short_number(double value) {
+  std::ostringstream out;
+  out.precision(3);
+  out << value;
+  return out.str();
+}
+
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 // log pi_ij = alpha_i + beta_j + (U V^T)_ij on the allowed cells.
@@ -344,7 +351,7 @@ LatentAssociationResult fit_latent_association(const ObservedAllocation& o,
   const Ascent& best = fits[static_cast<std::size_t>(chosen)].best;
   result.status = best.converged ? LatentFitStatus::converged : LatentFitStatus::not_converged;
   if (!best.converged)
-    result.message = "the score equations hold only to " + std::to_string(best.score_error) +
+    result.message = "the score equations hold only to " + short_number(best.score_error) +
                      " per unit after " + std::to_string(best.sweeps) + " sweeps";
   result.sweeps = best.sweeps;
   result.score_error = best.score_error;

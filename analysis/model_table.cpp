@@ -1,5 +1,6 @@
 #include "allocsim/analysis/model_table.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <iomanip>
 #include <limits>
@@ -84,17 +85,20 @@ void print_model_table(std::ostream& out, const std::vector<ModelFitSummary>& ta
   for (std::size_t k = 0; k < table.size(); ++k)
     if (std::isfinite(table[k].bic) && (best == table.size() || table[k].bic < table[best].bic))
       best = k;
+  int name_width = 18;
+  for (const ModelFitSummary& s : table)
+    name_width = std::max(name_width, static_cast<int>(s.model.size()) + 2);
   const auto flags = out.flags();
   const auto precision = out.precision();
-  out << std::left << std::setw(18) << "model" << std::right << std::setw(12) << "deviance"
+  out << std::left << std::setw(name_width) << "model" << std::right << std::setw(12) << "deviance"
       << std::setw(7) << "df" << std::setw(14) << "AIC" << std::setw(14) << "BIC"
       << "\n";
   out << std::fixed << std::setprecision(2);
   for (std::size_t k = 0; k < table.size(); ++k) {
     const ModelFitSummary& s = table[k];
-    out << std::left << std::setw(18) << s.model << std::right << std::setw(12) << s.deviance
-        << std::setw(7) << s.degrees_of_freedom << std::setw(14) << s.aic << std::setw(14) << s.bic
-        << (k == best ? "  <- lowest BIC" : "") << "\n";
+    out << std::left << std::setw(name_width) << s.model << std::right << std::setw(12)
+        << s.deviance << std::setw(7) << s.degrees_of_freedom << std::setw(14) << s.aic
+        << std::setw(14) << s.bic << (k == best ? "  <- lowest BIC" : "") << "\n";
   }
   out.flags(flags);
   out.precision(precision);

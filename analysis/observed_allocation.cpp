@@ -80,8 +80,8 @@ void require_whole(const Matrix& p, const std::string& source) {
     for (Eigen::Index j = 0; j < p.cols(); ++j)
       if (!whole(p(i, j)))
         throw InputError(source, cell(i, j) + " holds " + format_number(p(i, j)) +
-                                     ", not a whole number; counts (--values counts) are whole "
-                                     "numbers; read fractions as --values shares");
+                                     ", not a whole number; counts (values = counts) are whole "
+                                     "numbers; read fractions as shares (values = shares)");
 }
 
 // More than half of the non-zero cells above kLargeCellValue.
@@ -110,18 +110,18 @@ void read_values(const Matrix& p, const ValueReading& r, const std::string& sour
                 std::string(r.kind == ValueKind::automatic ? " (every cell whole)" : "") +
                 ": N = " + n + " independent units";
   else if (o.units > 0)
-    o.reading = "shares observed on N = " + n + " independent units (--units)";
+    o.reading = "shares observed on N = " + n + " independent units (units = N)";
   else
-    o.reading = std::string("shares") + (all_whole ? " (--values shares)" : " (cells not whole)") +
+    o.reading = std::string("shares") + (all_whole ? " (values = shares)" : " (cells not whole)") +
                 ": no unit count, so no standard error or interval";
   if (o.counts && (o.units > kLargeUnitCount || mostly_large(p)))
     o.warning = "the cells are read as counts of N = " + n +
                 " independent choices and the intervals assume exactly that; if they are money "
-                "or measurements rather than tallies, read them as shares: --values shares "
-                "(with --units N for the number of independent choices behind them)";
+                "or measurements rather than tallies, read them as shares (values = shares, "
+                "with units = N for the number of independent choices behind them)";
   else if (!o.counts && o.units > kLargeUnitCount)
     o.warning = "the intervals assume N = " + n +
-                " independent choices (--units); that many is rarely true of field data";
+                " independent choices (units = N); that many is rarely true of field data";
 }
 
 }  // namespace

@@ -7,6 +7,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/label_alignment.hpp"
+#include "allocsim/core/output_file.hpp"
 
 namespace allocsim {
 namespace {
@@ -108,19 +109,18 @@ class Exporter {
   std::vector<std::string> written_;
 };
 
-void make_folder(const std::string& folder) {
-  std::error_code error;
-  std::filesystem::create_directories(folder, error);
-  if (error || !std::filesystem::is_directory(folder))
-    throw InputError(folder, "cannot be created as a folder for the exports (" +
-                                 (error ? error.message() : std::string("a file has that name")) +
-                                 ")");
-}
-
 }  // namespace
 
+const std::vector<std::string>& report_export_names() {
+  static const std::vector<std::string> names = {
+      "matrix_nested.csv",     "links_nested.csv",   "agents.csv",
+      "partners.csv",          "left_out.csv",       "coupling_exact.csv",
+      "coupling_entropic.csv", "null_comparison.csv"};
+  return names;
+}
+
 std::vector<std::string> export_report(const AllocationReport& r, const std::string& folder) {
-  make_folder(folder);
+  NewFolder made(folder, folder);  // removed again when every export fails
   Exporter e(r, folder);
   e.matrix("matrix_nested.csv", r.values);
   e.matrix("links_nested.csv", to_matrix(r.links));
@@ -131,6 +131,7 @@ std::vector<std::string> export_report(const AllocationReport& r, const std::str
   if (r.exact.optimal()) e.matrix("coupling_exact.csv", r.exact.coupling * total);
   if (r.has_entropic) e.matrix("coupling_entropic.csv", r.temperature.coupling * total);
   if (r.structure.nodf_null || r.structure.wnodf_null) e.nulls("null_comparison.csv");
+  made.keep();
   return e.written();
 }
 

@@ -142,25 +142,59 @@ void print_report(const AllocationReport& report,
       json.add("gains_reconstruction", gains_reconstruction_json(*reconstruction));
     std::cout << json.str() << "\n";
   } else {
-    print_allocation_report(std::cout, report);
+    std::ostringstream text;
+    print_allocation_report(text, report);
+    std::cout << with_option_names(text.str());
     if (reconstruction) print_gains_reconstruction(std::cout, *reconstruction);
   }
   if (!vm.count("json")) return;  // the text report says both
-  if (!report.observed.warning.empty()) std::cerr << "warning: " << report.observed.warning << "\n";
+  if (!report.observed.warning.empty())
+    std::cerr << "warning: " << with_option_names(report.observed.warning) << "\n";
   if (!report.observed.note.empty()) std::cerr << "note: " << report.observed.note << "\n";
 }
 
-void write_exports(const AllocationReport& report, const po::variables_map& vm) {
+// Every file written into --export-dir, named on stderr.
+void write_exports(const AllocationReport& report,
+                   const std::optional<GainsReconstructionReport>& reconstruction,
+                   const po::variables_map& vm) {
   if (!vm.count("export-dir")) return;
-  const std::vector<std::string> written =
-      export_report(report, vm["export-dir"].as<std::string>());
-  std::cerr << "wrote " << written.size() << " files into " << vm["export-dir"].as<std::string>()
-            << "\n";
+  const std::string folder = vm["export-dir"].as<std::string>();
+  std::vector<std::string> written = export_report(report, folder);
+  if (reconstruction) {
+    const std::vector<std::string> more =
+        export_gains_reconstruction(*reconstruction, report.values.sum(), folder);
+    written.insert(written.end(), more.begin(), more.end());
+  }
+  std::cerr << "wrote " << written.size() << " files into " << folder << ":";
+  for (std::size_t k = 0; k < written.size(); ++k)
+    std::cerr << (k == 0 ? " " : ", ") << std::filesystem::path(written[k]).filename().string();
+  std::cerr << "\n";
+}
+
+// Refuses, before any analysis, a --save or an export of --export-dir that
+// is one of the input files.
+void require_outputs_apart_from_inputs(const po::variables_map& vm) {
+  std::vector<std::pair<std::string, std::string>> inputs;
+  for (const char* option : {"allocation", "gains", "access", "row-traits", "column-traits"}) {
+    if (vm.count(option))
+      inputs.emplace_back(std::string("--") + option, vm[option].as<std::string>());
+  }
+  if (vm.count("features")) {
+    for (const auto& path : vm["features"].as<std::vector<std::string>>())
+      inputs.emplace_back("--features", path);
+  }
+  if (vm.count("save")) require_distinct(vm["save"].as<std::string>(), "--save", inputs);
+  if (!vm.count("export-dir")) return;
+  if (vm.count("save")) inputs.emplace_back("--save", vm["save"].as<std::string>());
+  const std::filesystem::path folder = vm["export-dir"].as<std::string>();
+  for (const std::string& name : report_export_names())
+    require_distinct((folder / name).string(), "--export-dir", inputs);
 }
 
 // `--save obs.h5`: a results file with one run holding the field matrix, its
 // labels, the gains when given, and the analysis, like a simulated run.
 void save_results(const AllocationInput& in, const AllocationReport& report,
+                  const std::optional<GainsReconstructionReport>& reconstruction,
                   const po::variables_map& vm) {
   if (!vm.count("save")) return;
   const std::string path = vm["save"].as<std::string>();
@@ -184,9 +218,12 @@ void save_results(const AllocationInput& in, const AllocationReport& report,
     run.write_scenario(scenario);
   }
   run.write_report(report);
+  if (reconstruction) run.write_gains_reconstruction(*reconstruction, report.observed);
   run.set_text(layout::kStatus, layout::kStatusComplete);
   file.commit();
-  std::cerr << "saved the matrix and its analysis as run " << run_name(0) << " of " << path << "\n";
+  std::cerr << "saved the matrix and its analysis"
+            << (reconstruction ? " (with the gains reconstruction)" : "") << " as run "
+            << run_name(0) << " of " << path << "\n";
 }
 
 int exit_code(const AllocationReport& report) {
@@ -195,8 +232,33 @@ int exit_code(const AllocationReport& report) {
 
 // ---- results files ----
 
+std::string percent_text(std::optional<double> share) {
+  if (!share || !std::isfinite(*share)) return "n/a";
+  std::ostringstream out;
+  out.precision(2);
+  out << 100 * *share << "%";
+  return out.str();
+}
+
+// Why a run's allocation is not the stationary one, from the settling it
+// recorded (sim/settling.hpp: settled = "false"), with the advice; empty
+// when it settled or recorded nothing (field matrices, older files).
+std::string unsettled_note(const ResultsReader& reader, const std::string& run) {
+  const Attributes attributes = reader.run_attributes(run);
+  if (attribute_text(attributes, layout::kSettled) != "false") return "";
+  return run + " had not settled when it ended (capacity error " +
+         percent_text(attribute_number(attributes, layout::kCapacityError)) +
+         " of the units in its last window, change " +
+         percent_text(attribute_number(attributes, layout::kWindowChange)) +
+         " between its last two windows, drift " +
+         percent_text(attribute_number(attributes, layout::kDriftSinceBurnIn)) +
+         " since burn-in): its allocation after burn-in is not the stationary one. Play more "
+         "rounds with a longer burn-in (dynamics.rounds, dynamics.burn_in), a larger "
+         "dynamics.price_step at low temperature, or a smaller dynamics.window; see docs/guide.md";
+}
+
 // What a run of a results file holds for the analysis: its total
-// allocation after burn-in and its scenario.
+// allocation after burn-in and its scenario, and whether it had settled.
 AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   reader.require_run(run);
   const std::string where = reader.path() + ":/" + layout::kRuns + "/" + run + "/";
@@ -210,6 +272,7 @@ AllocationInput read_run(const ResultsReader& reader, const std::string& run) {
   in.allocation = reader.read_matrix(run, layout::kTotal);
   in.agent_labels = reader.read_texts(run, layout::kAgentLabels);
   in.partner_labels = reader.read_texts(run, layout::kPartnerLabels);
+  in.not_stationary = unsettled_note(reader, run);
   // A field matrix read as shares stays shares (with its N).
   const Attributes analysis = reader.group_attributes(run, layout::kAnalysis);
   if (attribute_text(analysis, layout::kValueReading) == "shares") {
@@ -321,7 +384,8 @@ int analyze_command(const Arguments& args) {
     return kExitOk;
   const AllocationAnalysisOptions analyze_options = read_options(vm);
   if (vm.count("results")) {
-    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing"})
+    for (const char* csv_only : {"values", "units", "export-dir", "save", "missing", "features",
+                                 "row-traits", "column-traits", "latent-rank"})
       if (vm.count(csv_only))
         throw InputError(std::string("--") + csv_only, "applies to --allocation P.csv only");
     if (vm.count("allocation") || vm.count("gains") || vm.count("access"))
@@ -331,14 +395,13 @@ int analyze_command(const Arguments& args) {
   }
   if (vm.count("run") || vm.count("write"))
     throw InputError(vm.count("run") ? "--run" : "--write", "applies to a results file only");
+  require_outputs_apart_from_inputs(vm);
   const AllocationInput input = read_csv_input(vm);
   const AllocationReport report = analyze_allocation(input, analyze_options);
   const std::optional<GainsReconstructionReport> reconstruction = reconstruct_if_asked(vm, report);
   print_report(report, reconstruction, vm);
-  write_exports(report, vm);
-  if (reconstruction && vm.count("export-dir"))
-    export_gains_reconstruction(*reconstruction, vm["export-dir"].as<std::string>());
-  save_results(input, report, vm);
+  write_exports(report, reconstruction, vm);
+  save_results(input, report, reconstruction, vm);
   return exit_code(report);
 }
 

@@ -12,6 +12,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/experiments/sweep_runner.hpp"
 #include "allocsim/experiments/trend.hpp"
 #include "allocsim/results/results_file.hpp"
@@ -151,13 +152,14 @@ int demo_command(const Arguments& args) {
                      "exists and is not empty; the demo writes into a new folder "
                      "(remove it or give --out-dir)");
   }
-  fs::create_directories(folder);
+  NewFolder made(folder.string(), "--out-dir");  // removed again if nothing could be written
   const std::string experiment = (folder / "demo.ini").string();
   {
     AtomicFile file(experiment);
     file.stream() << kDemoExperiment;
     file.commit();
   }
+  made.keep();
   const std::string results = (folder / "demo.h5").string();
   std::cerr << "allocsim demo: 40 boats choose among 30 harbour markets at six choice "
                "temperatures, two runs each; every run is analysed\n";

@@ -158,6 +158,7 @@ std::optional<GainsReconstructionReport> reconstruct_if_asked(const po::variable
 }
 
 std::vector<std::string> export_gains_reconstruction(const GainsReconstructionReport& report,
+                                                     double allocation_total,
                                                      const std::string& folder) {
   std::filesystem::create_directories(folder);
   std::vector<std::string> written;
@@ -174,6 +175,9 @@ std::vector<std::string> export_gains_reconstruction(const GainsReconstructionRe
     write_matrix_csv(path("feature_weights.csv"), table, f.names,
                      {"weight", "standard_error", "interval_low", "interval_high"});
     written.push_back(path("feature_weights.csv"));
+    write_matrix_csv(path("coupling_features.csv"), f.coupling * allocation_total,
+                     report.row_labels, report.column_labels);
+    written.push_back(path("coupling_features.csv"));
   }
   Matrix models(static_cast<Eigen::Index>(report.models.size()), 5);
   std::vector<std::string> names;
@@ -196,6 +200,11 @@ std::vector<std::string> export_gains_reconstruction(const GainsReconstructionRe
                      report.column_labels, dimensions);
     written.push_back(path("latent_row_scores.csv"));
     written.push_back(path("latent_column_scores.csv"));
+  }
+  if (report.latent) {
+    write_matrix_csv(path("coupling_latent.csv"), report.latent->coupling * allocation_total,
+                     report.row_labels, report.column_labels);
+    written.push_back(path("coupling_latent.csv"));
   }
   return written;
 }

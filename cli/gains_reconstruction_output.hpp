@@ -37,10 +37,17 @@ GainsReconstructionReport reconstruct_from_options(const po::variables_map& vm,
 std::optional<GainsReconstructionReport> reconstruct_if_asked(const po::variables_map& vm,
                                                               const AllocationReport& report);
 
-// Writes feature_weights.csv, model_table.csv and, with a latent model,
-// latent_row_scores.csv and latent_column_scores.csv into `folder`; returns
-// the paths written.
+// Writes into `folder` (labelled CSV, analysed rows and columns in input order):
+//   feature_weights.csv      with features: weight, standard_error, interval_low/high
+//   coupling_features.csv    with features: the fitted coupling
+//   model_table.csv          deviance, degrees_of_freedom, parameters, aic, bic per model
+//   latent_row_scores.csv,   with a latent rank K > 0: the scores, one column
+//   latent_column_scores.csv per dimension ("dimension_1", ...)
+//   coupling_latent.csv      with a latent model: the fitted coupling
+// Couplings are in the allocation's units (scaled to `allocation_total`).
+// Returns the paths written.
 std::vector<std::string> export_gains_reconstruction(const GainsReconstructionReport& report,
+                                                     double allocation_total,
                                                      const std::string& folder);
 
 }  // namespace allocsim::cli

@@ -1,11 +1,15 @@
 // allocsim: parse the subcommand, dispatch, report errors as one line.
+#include <cstdio>
+#include <cstdlib>
 #include <exception>
 #include <iostream>
 #include <string>
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/results/results_file.hpp"
 #include "commands.hpp"
+#include "options.hpp"
 
 namespace {
 
@@ -23,12 +27,45 @@ void print_overview() {
          "guide); every experiment key: docs/experiment-keys.md.\n";
 }
 
+// Ends a command that failed without the libraries' end-of-process
+// cleanup: after a failed write (a full disk) HDF5's teardown can crash, and
+// every file of ours is already committed or removed by then.
+[[noreturn]] void end_failed_command(int code) {
+  std::cout.flush();
+  std::cerr.flush();
+  std::fflush(nullptr);
+  std::_Exit(code);
+}
+
+// Runs `command`; an error is one line on stderr: exit 2 for input the
+// command cannot use, 1 for a failure (no solution, a write that failed).
+int run_command(const allocsim::cli::Command& command, const std::string& name,
+                const allocsim::cli::Arguments& arguments) {
+  using namespace allocsim::cli;
+  try {
+    return command.run(arguments);
+  } catch (const allocsim::InputError& e) {
+    // Errors about the command itself name it already: do not say it twice.
+    std::string message = e.what();
+    const std::string prefix = "allocsim " + name + ": ";
+    if (message.rfind(prefix, 0) == 0) message.erase(0, prefix.size());
+    std::cerr << "allocsim " << name << ": error: " << allocsim::cli::with_option_names(message)
+              << "\n";
+    return kExitUsage;
+  } catch (const std::exception& e) {
+    std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
+    return kExitProblem;
+  }
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
   using namespace allocsim::cli;
   // Ctrl-C and SIGTERM end any command with 130 / 143, removing its temporary files.
   allocsim::exit_cleanly_on_signals();
+  // Before any HDF5 call: no HDF5 diagnostics, no flush of an abandoned file at exit.
+  allocsim::silence_hdf5_diagnostics();
   if (argc < 2) {
     print_overview();
     return kExitUsage;
@@ -48,19 +85,9 @@ int main(int argc, char** argv) {
   }
   for (const auto& command : all_commands()) {
     if (name != command.name) continue;
-    try {
-      return command.run(Arguments(argv + 2, argv + argc));
-    } catch (const allocsim::InputError& e) {
-      // Errors about the command itself name it already: do not say it twice.
-      std::string message = e.what();
-      const std::string prefix = "allocsim " + name + ": ";
-      if (message.rfind(prefix, 0) == 0) message.erase(0, prefix.size());
-      std::cerr << "allocsim " << name << ": error: " << message << "\n";
-      return kExitUsage;
-    } catch (const std::exception& e) {
-      std::cerr << "allocsim " << name << ": error: " << e.what() << "\n";
-      return kExitProblem;
-    }
+    const int code = run_command(command, name, Arguments(argv + 2, argv + argc));
+    if (code != kExitOk) end_failed_command(code);
+    return code;
   }
   std::cerr << "allocsim: unknown command '" << name << "' (see 'allocsim --help')\n";
   return kExitUsage;

@@ -1,11 +1,66 @@
 #include "options.hpp"
 
+#include <algorithm>
 #include <iostream>
+#include <vector>
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/experiments/keys.hpp"
 
 namespace allocsim::cli {
+namespace {
+
+std::size_t edit_distance(const std::string& a, const std::string& b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t above = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      diagonal = above;
+    }
+  }
+  return row[b.size()];
+}
+
+// The option of `options` nearest to `name` (also by its part after the
+// first '.', so "temperature" finds "dynamics.temperature").
+std::string nearest_option(const po::options_description& options, const std::string& name) {
+  std::string best;
+  std::size_t best_distance = std::string::npos;
+  for (const auto& option : options.options()) {
+    const std::string& candidate = option->long_name();
+    if (candidate.empty()) continue;
+    std::size_t d = edit_distance(name, candidate);
+    const auto dot = candidate.find('.');
+    if (dot != std::string::npos) d = std::min(d, edit_distance(name, candidate.substr(dot + 1)));
+    if (d < best_distance) {
+      best_distance = d;
+      best = candidate;
+    }
+  }
+  return best;
+}
+
+// Refuses an option the command does not know, naming the nearest one,
+// before the parser reads its value as a stray argument.
+void refuse_unknown_options(const Arguments& args, const po::options_description& options) {
+  for (const std::string& token : args) {
+    if (token.size() <= 2 || token.compare(0, 2, "--") != 0) continue;
+    const std::string name = token.substr(2, token.find('=') - 2);
+    try {
+      if (options.find_nothrow(name, true)) continue;  // also an unambiguous abbreviation
+    } catch (const po::error&) {
+      continue;  // an ambiguous abbreviation: the parser says so
+    }
+    throw InputError("--" + name,
+                     "unknown option (did you mean --" + nearest_option(options, name) + "?)");
+  }
+}
+
+}  // namespace
 
 bool parse_or_help(const Arguments& args, const po::options_description& options,
                    const po::positional_options_description& positional, po::variables_map& vm,
@@ -36,6 +91,7 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
                                              const po::options_description& options,
                                              const po::positional_options_description* positional,
                                              const std::string& command) {
+  refuse_unknown_options(args, options);
   po::variables_map vm;
   try {
     po::command_line_parser parser(args);
@@ -81,6 +137,22 @@ std::vector<std::pair<std::string, std::string>> experiment_values_given(
     if (vm.count(key.name)) given.emplace_back(key.name, vm[key.name].as<std::string>());
   }
   return given;
+}
+
+std::string with_option_names(std::string text) {
+  static const std::pair<const char*, const char*> kOptions[] = {
+      {"values = shares", "--values shares"},
+      {"values = counts", "--values counts"},
+      {"units = N", "--units N"},
+      {"missing = zero", "--missing zero"},
+      {"(rescale)", "(--rescale)"},
+      {"raise mass_units", "raise --mass-units"}};
+  for (const auto& [setting, option] : kOptions) {
+    const std::string from = setting;
+    for (auto at = text.find(from); at != std::string::npos; at = text.find(from, at))
+      text.replace(at, from.size(), option);
+  }
+  return text;
 }
 
 }  // namespace allocsim::cli

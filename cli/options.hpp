@@ -31,6 +31,12 @@ po::variables_map parse_with_experiment_keys(const Arguments& args,
                                              const po::positional_options_description* positional,
                                              const std::string& command);
 
+// `text` from the library with its setting names as this program's options:
+// the library names a setting by its field ("values = shares", "units = N",
+// "missing = zero", "rescale", "mass_units"); here they are --values shares,
+// --units N, --missing zero, --rescale, --mass-units.
+std::string with_option_names(std::string text);
+
 // Most worker threads any command starts; more is refused (a typo such as
 // --threads 100000 would otherwise exhaust the process's threads).
 constexpr int kMaxThreads = 1024;

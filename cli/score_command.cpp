@@ -3,6 +3,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/experiments/benchmark_score.hpp"
 #include "commands.hpp"
 #include "options.hpp"
@@ -26,6 +27,28 @@ void write_csv(const std::string& path, const CsvTable& table) {
   file.commit();
 }
 
+// A device or FIFO given as --out gets the per-case CSV, written through.
+bool written_through(const std::string& out) {
+  return resolve_output(out).kind == OutputKind::device_or_fifo;
+}
+
+// Every output names a .csv, a .h5, or a device / FIFO; none is an input or
+// another output.
+void check_outputs(const po::variables_map& vm, const std::vector<std::string>& outputs) {
+  std::vector<std::pair<std::string, std::string>> named = {
+      {"--truth", vm["truth"].as<std::string>()}, {"--answers", vm["answers"].as<std::string>()}};
+  for (const auto& out : outputs) {
+    if (!written_through(out) && !ends_with(out, ".csv") && !ends_with(out, ".h5"))
+      throw InputError("--out", "'" + out + "' ends neither in .csv nor in .h5");
+    if (!written_through(out)) require_distinct(out, "--out", named);
+    named.emplace_back("--out", out);
+  }
+  if (vm.count("groups-csv")) {
+    const std::string groups = vm["groups-csv"].as<std::string>();
+    if (!written_through(groups)) require_distinct(groups, "--groups-csv", named);
+  }
+}
+
 }  // namespace
 
 int score_command(const Arguments& args) {
@@ -35,8 +58,7 @@ int score_command(const Arguments& args) {
       "CSV with columns case, epsilon (empty: declined; inf allowed) and optionally ci_low, "
       "ci_high")("out", po::value<std::vector<std::string>>()->composing(),
                  "write the scores: F.csv (one row per case), F.h5 (a results file that `allocsim "
-                 "plot` draws); "
-                 "may be given twice")(
+                 "plot` draws), a device or FIFO (the CSV); may be given twice")(
       "groups-csv", po::value<std::string>(),
       "write the table of groups (one row per group) to this CSV file")(
       "json", "print one JSON object on stdout");
@@ -47,15 +69,12 @@ int score_command(const Arguments& args) {
     return kExitOk;
   std::vector<std::string> outputs;
   if (vm.count("out")) outputs = vm["out"].as<std::vector<std::string>>();
-  for (const auto& out : outputs) {
-    if (!ends_with(out, ".csv") && !ends_with(out, ".h5"))
-      throw InputError("--out", "'" + out + "' ends neither in .csv nor in .h5");
-  }
+  check_outputs(vm, outputs);
   const CsvTable truth = read_csv_table(vm["truth"].as<std::string>());
   const CsvTable answers = read_csv_table(vm["answers"].as<std::string>());
   const ScoreReport report = score_answers(truth, answers);
   for (const auto& out : outputs) {
-    if (ends_with(out, ".csv"))
+    if (written_through(out) || ends_with(out, ".csv"))
       write_csv(out, report.per_case_table());
     else
       write_score_file(out, report,

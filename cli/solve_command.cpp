@@ -228,7 +228,7 @@ int solve_command(const Arguments& args) {
     if (!report.message.empty()) json.add("message", report.message);
     std::cout << json.str() << "\n";
   } else if (report.ok) {
-    (coupling_to_stdout ? std::cerr : std::cout) << report.brief << "\n";
+    (coupling_to_stdout ? std::cerr : std::cout) << with_option_names(report.brief) << "\n";
   }
   if (!report.ok) {
     const std::string where =

@@ -75,9 +75,10 @@ int synth_command(const Arguments& args) {
   } else {
     const std::string shape = "agents=" + std::to_string(vm["agents"].as<long>()) +
                               ", partners=" + std::to_string(vm["partners"].as<long>());
-    benchmark.shape = parse_shape_law(
-        shape, vm["agents"].as<long>() < 2 || vm["agents"].as<long>() > 100000 ? "--agents"
-                                                                               : "--partners");
+    const long agents = vm["agents"].as<long>();
+    benchmark.shape =
+        parse_shape_law(shape, agents < 2 || agents > 1000000000 ? "--agents" : "--partners");
+    benchmark.shape.where = "--agents";
   }
   benchmark.budgets = parse_marginal_laws(vm["budgets"].as<std::string>(), "--budgets");
   benchmark.capacities = parse_marginal_laws(vm["capacities"].as<std::string>(), "--capacities");

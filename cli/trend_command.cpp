@@ -13,6 +13,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/json.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/experiments/trend.hpp"
 #include "allocsim/results/results_reader.hpp"
 #include "commands.hpp"
@@ -312,6 +313,10 @@ int trend_command(const Arguments& args) {
   }
   if (!vm.count("file"))
     throw InputError("allocsim trend", "name a results file (see 'allocsim trend --help')");
+  if (vm.count("csv")) {
+    require_distinct(vm["csv"].as<std::string>(), "--csv",
+                     {{"the results file", vm["file"].as<std::string>()}});
+  }
   ResultsReader reader(vm["file"].as<std::string>());
   SummaryColumns summary{reader.summary_numbers(), reader.summary_texts(), 0};
   if (!summary.numbers.empty())

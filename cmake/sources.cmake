@@ -57,6 +57,8 @@ allocsim_layer(results
   SOURCES
     results/hdf5_io.cpp
     results/recorder.cpp
+    results/reconstruction_reader.cpp
+    results/reconstruction_writer.cpp
     results/report_writer.cpp
     results/results_file.cpp
     results/results_reader.cpp
@@ -88,13 +90,16 @@ allocsim_layer(plots
     plots/figure_script.cpp
     plots/gnuplot_text.cpp
     plots/heatmap.cpp
+    plots/latent_scores.cpp
+    plots/level_plots.cpp
     plots/null_histogram.cpp
     plots/results_figures.cpp
     plots/ordering.cpp
     plots/scores.cpp
     plots/series.cpp
     plots/trajectories.cpp
-  LINKS allocsim::results allocsim_gnuplot)
+    plots/trend_summary.cpp
+  LINKS allocsim::experiments allocsim_gnuplot)
 include(plots/style.cmake)
 
 add_executable(allocsim

@@ -119,6 +119,7 @@ AtomicFile::AtomicFile(std::string path) : path_(std::move(path)) {
   if (target.kind == OutputKind::device_or_fifo) {
     fd = ::open(target_.c_str(), O_WRONLY | O_CLOEXEC);  // written through, never replaced
   } else if (target.kind == OutputKind::regular || target.kind == OutputKind::absent) {
+    require_not_an_input(target_, path_);
     struct stat existing {};
     if (target.kind == OutputKind::regular && ::stat(target_.c_str(), &existing) == 0) {
       mode = existing.st_mode & 07777;

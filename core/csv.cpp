@@ -136,7 +136,7 @@ void MatrixReader::refuse_nonfinite(const Field& field, long line, std::size_t c
 void MatrixReader::refuse_missing(Kind kind, long line, std::size_t column) const {
   throw InputError(where(line),
                    column_name(column) + (kind == Kind::na ? " holds NA" : " is empty") +
-                       "; missing values are refused unless read as 0 (--missing zero)");
+                       "; missing values are refused unless read as 0 (missing = zero)");
 }
 
 std::vector<Field> MatrixReader::split_record(const char*& p, long line) const {

@@ -12,6 +12,7 @@
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/memory_limit.hpp"
+#include "allocsim/core/output_file.hpp"
 
 namespace allocsim::csv_text {
 namespace {
@@ -129,6 +130,7 @@ std::string read_file(const std::string& path) {
   struct stat info {};
   if (::fstat(fd.get(), &info) != 0) fail_reading(path);
   if (S_ISDIR(info.st_mode)) throw InputError(path, "is a directory; give the path of a CSV file");
+  remember_input(path);  // no writer of this process may replace it
   std::string text = S_ISREG(info.st_mode)
                          ? read_regular(fd.get(), static_cast<double>(info.st_size), path)
                          : read_stream(fd.get(), path);

@@ -12,6 +12,8 @@
 #include <cstring>
 #include <ctime>
 #include <filesystem>
+#include <map>
+#include <mutex>
 
 #include "allocsim/core/error.hpp"
 
@@ -65,7 +67,31 @@ std::string read_small_file(int fd) {
   return content;
 }
 
+// The inputs read so far: (device, inode) -> the path as given.
+std::mutex inputs_mutex;
+std::map<std::pair<dev_t, ino_t>, std::string>& remembered_inputs() {
+  static std::map<std::pair<dev_t, ino_t>, std::string> inputs;
+  return inputs;
+}
+
 }  // namespace
+
+void remember_input(const std::string& path) {
+  struct stat info {};
+  if (::stat(path.c_str(), &info) != 0 || !S_ISREG(info.st_mode)) return;
+  const std::lock_guard<std::mutex> guard(inputs_mutex);
+  remembered_inputs().emplace(std::make_pair(info.st_dev, info.st_ino), path);
+}
+
+void require_not_an_input(const std::string& output, const std::string& label) {
+  struct stat info {};
+  if (::stat(output.c_str(), &info) != 0 || !S_ISREG(info.st_mode)) return;
+  const std::lock_guard<std::mutex> guard(inputs_mutex);
+  const auto found = remembered_inputs().find(std::make_pair(info.st_dev, info.st_ino));
+  if (found == remembered_inputs().end()) return;
+  throw InputError(label, "is also an input of this command (" + found->second +
+                              "); it would be overwritten: choose another name");
+}
 
 ResolvedOutput resolve_output(const std::string& path) {
   ResolvedOutput out;
@@ -159,6 +185,30 @@ std::string write_failure_cause(const std::string& path, const std::string& deta
     return std::strerror(ENOSPC);
   }
   return detail;
+}
+
+NewFolder::NewFolder(const std::string& folder, const std::string& label) {
+  std::error_code error;
+  for (fs::path missing = fs::absolute(folder, error).lexically_normal();
+       !missing.empty() && !fs::exists(missing, error) && missing != missing.parent_path();
+       missing = missing.parent_path()) {
+    if (!missing.filename().empty()) created_.push_back(missing.string());
+  }
+  fs::create_directories(folder, error);
+  if (error || !fs::is_directory(folder)) {
+    created_.clear();
+    throw InputError(label, (label == folder ? std::string() : folder + ": ") +
+                                "cannot be created as a folder (" +
+                                (error ? error.message() : std::string("a file has that name")) +
+                                ")");
+  }
+}
+
+NewFolder::~NewFolder() {
+  std::error_code error;
+  for (const auto& folder : created_) {
+    if (!fs::is_empty(folder, error) || !fs::remove(folder, error)) break;
+  }
 }
 
 OutputLock::OutputLock(const std::string& path) : lock_path_(follow_links(path) + ".lock") {

@@ -63,7 +63,7 @@ void validate(const TransportProblem& p, const ProblemSources& src, double balan
     std::ostringstream msg;
     msg.precision(12);
     msg << "budgets total " << rb << " but capacities (" << src.capacities << ") total " << rc
-        << "; make the totals equal or pass --rescale to scale the capacities";
+        << "; make the totals equal or rescale the capacities to the budgets' total (rescale)";
     throw InputError(src.budgets, msg.str());
   }
 }

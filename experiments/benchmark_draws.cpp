@@ -14,9 +14,9 @@ namespace {
 
 long read_whole(const std::string& item, const std::string& where, const std::string& text) {
   const double value = finite_number_in(item, where, text);
-  if (value != std::floor(value) || value < 2 || value > 100000) {
+  if (value != std::floor(value) || value < 2 || value > 1e9) {
     throw InputError(where, "'" + trim_blanks(item) + "' in '" + text +
-                                "' is not a whole number in [2, 100000]");
+                                "' is not a whole number in [2, 1e9]");
   }
   return static_cast<long>(value);
 }
@@ -94,6 +94,7 @@ ShapeLaw parse_shape_law(const std::string& text, const std::string& where) {
       R"(^\s*(agents|partners)\s*=\s*([^.]+?)\s*(?:\.\.\s*(.+?))?\s*$)");
   ShapeLaw shape;
   shape.text = trim_blanks(text);
+  shape.where = where;
   bool seen_agents = false, seen_partners = false;
   for (const std::string& item : split_commas(text)) {
     std::smatch m;

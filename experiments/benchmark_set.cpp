@@ -11,6 +11,7 @@
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/csv.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/memory_limit.hpp"
 #include "allocsim/core/random.hpp"
 #include "allocsim/results/layout.hpp"
 #include "allocsim/results/results_file.hpp"
@@ -172,12 +173,27 @@ void BenchmarkOptions::validate() const {
   const double least_units =
       units.drawn() ? units.low : *std::min_element(units.values.begin(), units.values.end());
   if (least_units < 1) throw InputError("--units", "'" + units.text + "' allows fewer than 1 unit");
+  // Counts are whole numbers held exactly (doubles are exact to 2^53).
+  constexpr double kMostUnits = 1e15;
+  const double most_units =
+      units.drawn() ? units.high : *std::max_element(units.values.begin(), units.values.end());
+  if (most_units > kMostUnits)
+    throw InputError("--units", "'" + units.text + "' allows more than 1e15 units per case");
   if (budgets.empty()) throw InputError("--budgets", "name at least one law");
   if (capacities.empty()) throw InputError("--capacities", "name at least one law");
   if (cases < 0) throw InputError("--cases", "must be >= 0 (0: one per design cell and replicate)");
   if (replicates < 1) throw InputError("--replicates", "must be at least 1");
   if (total_cases(*this, design_cells(*this)) > 1000000)
     throw InputError(cases > 0 ? "--cases" : "--replicates", "more than a million cases");
+  // Dense agents x partners matrices one case holds at once at the largest
+  // shape: gains, the allocation, and a simulation's (8) or the entropic
+  // coupling's working matrices (an estimate).
+  constexpr double kCaseMatrices = 10;
+  require_memory(dense_matrix_bytes(static_cast<double>(shape.agents.high),
+                                    static_cast<double>(shape.partners.high), kCaseMatrices),
+                 "a case of " + std::to_string(shape.agents.high) + " x " +
+                     std::to_string(shape.partners.high) + " cells",
+                 shape.where, "use fewer agents or partners");
 }
 
 std::vector<BenchmarkCase> plan_benchmark_set(const BenchmarkOptions& options) {

@@ -1,5 +1,7 @@
 #include "allocsim/experiments/experiment.hpp"
 
+#include "allocsim/experiments/analysis_settings.hpp"
+
 #include "allocsim/core/error.hpp"
 #include "key_errors.hpp"
 
@@ -60,6 +62,7 @@ SimulationSettings simulation_settings(const ExperimentValues& values) {
   detail::check_as_keys(values, "dynamics", [&] {
     settings.dynamics = dynamics_options(values);
     settings.dynamics.validate();
+    check_reconstruction_keys(values);
   });
   settings.output_file = values.text("output.file");
   return settings;

@@ -121,6 +121,17 @@ std::vector<ExperimentKey> build_keys() {
                false),
       word_key("analysis.nulls", "none", "null model NODF (and WNODF) are compared with", nulls),
       integer_key("analysis.null_samples", "200", "size of the null ensemble", 2),
+      word_key("analysis.latent_rank", "none",
+               "reconstruct the gains from the allocation alone: the latent association model "
+               "RC(K) with K dimensions, or auto (K by BIC up to analysis.max_latent_rank); "
+               "needs analysis.enabled",
+               {"none", "auto", "1", "2", "3", "4", "5", "6", "7", "8"}),
+      integer_key("analysis.max_latent_rank", "3",
+                  "largest K that analysis.latent_rank = auto tries", 1),
+      boolean_key("analysis.trait_features", "false",
+                  "reconstruct the gains from the scenario's own traits (rank-product, "
+                  "trait-distance, features gains): fit gains/epsilon = sum_k beta_k F_k to their "
+                  "trait-matching features; needs analysis.enabled"),
       make_key("output.file", KeyKind::path, "results.h5", "results file (HDF5) to write"),
   };
 }

@@ -115,7 +115,14 @@ RunResult record_run(ResultsFile& file, const std::string& run, std::uint64_t ru
         problem.gains,
         problem.access,
         {run + "/" + layout::kTotal, run + "/" + layout::kGains, run + "/" + layout::kAccess}};
-    group.write_report(analyze_allocation(input, analysis_options(values, run_index)));
+    const AllocationReport report = analyze_allocation(input, analysis_options(values, run_index));
+    group.write_report(report);
+    if (const auto options = reconstruction_options(values, run_index))
+      group.write_gains_reconstruction(
+          reconstruct_simulated_gains(report.observed, problem,
+                                      scenario_traits(settings.scenario, run_index), *options,
+                                      values),
+          report.observed);
   } else {
     group.clear_analysis();
   }

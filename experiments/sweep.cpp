@@ -113,6 +113,20 @@ std::vector<std::string> expand_sweep_values(const std::string& spec, const std:
 
 std::vector<SweepPoint> sweep_points(const std::vector<SweepAxis>& axes, SweepCombine combine,
                                      long replicates) {
+  // Counted before anything is built: a sweep too large fails at once.
+  constexpr double kMostRuns = 1e6;
+  double runs = static_cast<double>(replicates);
+  std::string product;
+  for (const auto& axis : axes) {
+    if (combine == SweepCombine::grid || &axis == &axes.front())
+      runs *= static_cast<double>(axis.values.size());
+    product += std::to_string(axis.values.size()) + " " + axis.key + " x ";
+  }
+  if (runs > kMostRuns) {
+    throw InputError("[sweep]", "the sweep has " + product + std::to_string(replicates) +
+                                    " replicates, more than a million runs; split it into several "
+                                    "experiments");
+  }
   std::vector<std::vector<std::pair<std::string, std::string>>> settings(1);
   if (combine == SweepCombine::zip && !axes.empty()) {
     const std::size_t length = axes.front().values.size();

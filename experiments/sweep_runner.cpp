@@ -140,6 +140,24 @@ std::map<std::string, std::string> identity_lines(const std::string& text) {
   return lines;
 }
 
+// An identity value as a reader wants it: each number of a list in its
+// shortest form ("0.10000000000000001" -> "0.1").
+std::string readable(const std::string& value) {
+  std::string text, item;
+  std::istringstream in(value);
+  bool first = true;
+  while (std::getline(in, item, ',')) {
+    const auto begin = item.find_first_not_of(' ');
+    const std::string trimmed = begin == std::string::npos ? "" : item.substr(begin);
+    char* end = nullptr;
+    const double number = std::strtod(trimmed.c_str(), &end);
+    const bool is_number = !trimmed.empty() && end && *end == '\0';
+    text += (first ? "" : ", ") + (is_number ? format_number(number) : trimmed);
+    first = false;
+  }
+  return text;
+}
+
 // The first difference between two identities, in words; "" when equal.
 std::string identity_difference(const std::string& stored, const std::string& now) {
   if (stored == now) return "";
@@ -152,8 +170,8 @@ std::string identity_difference(const std::string& stored, const std::string& no
   for (const auto& key : keys) {
     const auto b = before.find(key);
     const auto a = after.find(key);
-    const std::string then = b == before.end() ? "(none)" : b->second;
-    const std::string current = a == after.end() ? "(none)" : a->second;
+    const std::string then = b == before.end() ? "(none)" : readable(b->second);
+    const std::string current = a == after.end() ? "(none)" : readable(a->second);
     if (then == current) continue;
     if (key.rfind("content of ", 0) == 0) return key.substr(11) + " changed since";
     return key + " is " + then + " there, " + current + " now";
@@ -161,14 +179,63 @@ std::string identity_difference(const std::string& stored, const std::string& no
   return "the experiment changed";
 }
 
+// "3 values (0.05, 0.1, 0.2)".
+std::string listed_values(const std::set<std::string>& values) {
+  std::string text =
+      std::to_string(values.size()) + (values.size() == 1 ? " value (" : " values (");
+  bool first = true;
+  for (const auto& value : values) {
+    text += (first ? "" : ", ") + value;
+    first = false;
+  }
+  return text + ")";
+}
+
+// Why a finished file holds another number of runs than the plan: the first
+// key whose set of values differs (an axis longer or shorter, a key swept
+// there and not now, other replicates), named with both sets of values.
+std::string run_count_difference(const SweepPlan& plan, const ResultsReader& reader,
+                                 const std::vector<std::string>& runs) {
+  const auto value_text = [](const Attributes& attributes, const std::string& name) {
+    const auto number = attribute_number(attributes, name);
+    return number ? format_number(*number) : attribute_text(attributes, name);
+  };
+  std::map<std::string, std::set<std::string>> there;
+  for (const auto& run : runs) {
+    const Attributes attributes = reader.run_attributes(run);
+    for (const auto& key : experiment_keys())
+      there[key.name].insert(value_text(attributes, key.name));
+    there[layout::kReplicate].insert(value_text(attributes, layout::kReplicate));
+  }
+  std::map<std::string, std::set<std::string>> now;
+  for (long k = 0; k < static_cast<long>(plan.points.size()); ++k) {
+    const ExperimentValues values = plan.run_values(k);
+    for (const auto& key : experiment_keys()) {
+      now[key.name].insert(key.kind == KeyKind::integer || key.kind == KeyKind::real
+                               ? format_number(values.real(key.name))
+                               : values.text(key.name));
+    }
+    now[layout::kReplicate].insert(
+        format_number(static_cast<double>(plan.points[static_cast<std::size_t>(k)].replicate)));
+  }
+  for (const auto& [name, values] : now) {
+    if (name == "output.file" || there[name].size() == values.size()) continue;
+    if (name == layout::kReplicate) {
+      return "sweep.replicates is " + std::to_string(there[name].size()) + " there, " +
+             std::to_string(values.size()) + " now";
+    }
+    const std::string key = values.size() > 1 ? "sweep." + name : name;
+    return key + " has " + listed_values(there[name]) + " there, " + listed_values(values) + " now";
+  }
+  return "it holds " + std::to_string(runs.size()) + " runs, this experiment has " +
+         std::to_string(plan.points.size());
+}
+
 // The first difference between a finished results file and the plan, run by
 // run and key by key; "" when it holds exactly the plan's runs.
 std::string finished_file_difference(const SweepPlan& plan, const ResultsReader& reader) {
   const std::vector<std::string> runs = reader.runs();
-  if (runs.size() != plan.points.size()) {
-    return "it holds " + std::to_string(runs.size()) + " runs, this experiment has " +
-           std::to_string(plan.points.size());
-  }
+  if (runs.size() != plan.points.size()) return run_count_difference(plan, reader, runs);
   for (long k = 0; k < static_cast<long>(plan.points.size()); ++k) {
     const std::string run = run_name(k);
     if (runs[static_cast<std::size_t>(k)] != run) return "it holds no " + run;

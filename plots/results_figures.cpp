@@ -9,7 +9,9 @@
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/plots/figure_data.hpp"
+#include "allocsim/plots/latent_score_figure.hpp"
 #include "allocsim/results/layout.hpp"
+#include "allocsim/results/reconstruction_reader.hpp"
 #include "allocsim/results/run_records.hpp"
 
 namespace allocsim::plots {
@@ -27,6 +29,7 @@ struct PlotContext {
   std::ostream& notes;
   std::vector<std::string> written;
   FigureOptions options = request.options;
+  RunLevels levels;  // the factor that splits the figures against temperature
 
   void record(const std::string& path) {
     if (request.on_written) request.on_written(path);
@@ -228,6 +231,25 @@ void draw_null_distributions(PlotContext& context, const ResultsReader& reader,
                                       context.options));
 }
 
+// The latent scores of a stored gains reconstruction (analyze --latent-rank
+// ... --save, or a sweep with analysis.latent_rank).
+void draw_latent(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
+  const std::optional<GainsReconstructionReport> reconstruction =
+      read_gains_reconstruction(reader, run.name);
+  if (!reconstruction) return;
+  const std::string source =
+      is_observed(run) ? file_name_of(*run.text(layout::kObservedAllocation)) : run_caption(run);
+  const std::optional<LatentScoreMap> figure = latent_score_map(*reconstruction, source);
+  if (!figure) {
+    if (reconstruction->latent)
+      context.notes << "note: " << run.name << " holds a latent fit of rank 0 (independence): "
+                    << "no latent scores to draw\n";
+    return;
+  }
+  context.record(draw_latent_scores(
+      *figure, context.stem(file_name_part(run.name) + "-latent-scores"), context.options));
+}
+
 void draw_trajectories(PlotContext& context, const ResultsReader& reader, const RunRecord& run) {
   const std::string figure_name = "trajectories of " + run.name;
   if (!reader.has(run.name, layout::kRoundEnd))
@@ -259,7 +281,8 @@ void draw_trajectories(PlotContext& context, const ResultsReader& reader, const 
 
 void draw_metric(PlotContext& context, const std::vector<RunRecord>& runs,
                  const std::string& metric, const std::string& display) {
-  const MetricAgainstTemperature figure = metric_against_temperature(runs, metric, display);
+  const MetricAgainstTemperature figure =
+      metric_against_temperature(runs, metric, display, context.levels);
   if (distinct_x(figure.runs) < 2) {
     return context.skip(display + " against temperature",
                         "needs runs with a " + metric + " value at two or more temperatures");
@@ -272,8 +295,33 @@ void draw_metric(PlotContext& context, const std::vector<RunRecord>& runs,
                                                  context.options));
 }
 
+// The z-scores of a metric against its null; silent when no run has one.
+void draw_z_scores(PlotContext& context, const std::vector<RunRecord>& runs,
+                   const std::string& metric, const std::string& display) {
+  const ZScoresAgainstTemperature figure =
+      z_scores_against_temperature(runs, metric, display, context.levels);
+  if (figure.runs.empty()) return;
+  if (distinct_x(figure.runs) < 2) {
+    return context.skip(display + " z-scores against temperature",
+                        "needs runs with a " + metric + "_z_score at two or more temperatures");
+  }
+  context.record(draw_z_scores_against_temperature(
+      figure, context.stem(metric + "-z-vs-temperature"), context.options));
+}
+
+// The trend of NODF's z-score (else NODF) against temperature per level.
+void draw_trend(PlotContext& context, const std::vector<RunRecord>& runs) {
+  for (const char* metric : {"nodf_z_score", "nodf"}) {
+    if (distinct_x(points_against_temperature(runs, metric)) < 2) continue;
+    const TrendSummary figure = trend_summary(runs, metric, context.levels);
+    if (figure.rows.empty()) continue;
+    return context.record(
+        draw_trend_summary(figure, context.stem("trend-summary"), context.options));
+  }
+}
+
 void draw_recovery(PlotContext& context, const std::vector<RunRecord>& runs) {
-  const TemperatureRecovery figure = temperature_recovery(runs);
+  const TemperatureRecovery figure = temperature_recovery(runs, context.levels);
   long drawable = 0;
   for (const auto& p : figure.runs) drawable += (p.x > 0 && p.y > 0 && std::isfinite(p.y));
   if (drawable == 0) {
@@ -286,7 +334,8 @@ void draw_recovery(PlotContext& context, const std::vector<RunRecord>& runs) {
 
 void draw_distances(PlotContext& context, const std::vector<RunRecord>& runs) {
   for (const auto& [name, display] : kDistances) {
-    const DistanceAgainstTemperature figure = distance_against_temperature(runs, name, display);
+    const DistanceAgainstTemperature figure =
+        distance_against_temperature(runs, name, display, context.levels);
     std::vector<Point> both = figure.to_entropic;
     both.insert(both.end(), figure.to_exact.begin(), figure.to_exact.end());
     if (distinct_x(both) < 2) continue;
@@ -311,6 +360,29 @@ void draw_scores(PlotContext& context, const std::vector<RunRecord>& records) {
   }
   context.record(
       draw_estimator_score_card(figure, context.stem("estimator-scores"), context.options));
+}
+
+// "swept in FILE: a, b" or "nothing besides the temperature is swept in FILE".
+std::string swept_list(const std::vector<RunRecord>& runs, const std::string& path) {
+  std::string list;
+  for (const auto& key : swept_keys(runs))
+    if (key != kChoiceTemperatureKey) list += (list.empty() ? "" : ", ") + key;
+  return list.empty() ? "nothing besides the temperature is swept in " + path
+                      : "swept in " + path + ": " + list;
+}
+
+// The factor of the figures against temperature (request.by), told when picked.
+RunLevels chosen_levels(const ResultsFiguresRequest& request, const std::vector<RunRecord>& runs,
+                        const std::string& path) {
+  const FactorChoice choice = choose_factor(runs, request.by, path);
+  if (choice.key.empty() && request.panels)
+    throw InputError("--panels", "needs a swept key to split by: name one with --by KEY (" +
+                                     swept_list(runs, path) + ")");
+  if (choice.key.empty()) return {};
+  RunLevels levels = levels_of(runs, choice.key);
+  levels.factor.panels = request.panels;
+  if (choice.automatic && request.on_factor) request.on_factor(choice.key);
+  return levels;
 }
 
 // The run with the smallest run_index (else the first by name), or `wanted`.
@@ -341,24 +413,38 @@ std::vector<std::string> draw_results_figures(const ResultsReader& reader,
   if (runs.empty() && !scores_only) throw InputError(reader.path(), "holds no runs");
   if (scores_only && !request.run.empty())
     throw InputError("--run", reader.path() + " holds scores of a benchmark set, no runs");
+  if (scores_only && !request.by.empty() && request.by != "none")
+    throw InputError("--by", reader.path() +
+                                 " holds scores of a benchmark set; --by splits the figures "
+                                 "against temperature of runs");
+  RunLevels levels;
+  if (!scores_only) {
+    chosen_run(runs, request.run, reader.path());  // refuses an unknown --run before writing
+    levels = chosen_levels(request, runs, reader.path());
+  }
   std::error_code error;
   std::filesystem::create_directories(request.out_dir, error);
   if (error) throw InputError(request.out_dir, "cannot be created (" + error.message() + ")");
-  PlotContext context{request, notes, {}};
+  PlotContext context{request, notes, {}, request.options, levels};
   if (scores_only) {  // a scores file (allocsim score --out scores.h5): one row per case
     draw_scores(context, rows);
     return context.written;
   }
   const RunRecord& chosen = chosen_run(runs, request.run, reader.path());
+
   draw_heatmaps(context, reader, chosen);
   draw_links(context, reader, chosen);
   draw_null_distributions(context, reader, chosen);
+  draw_latent(context, reader, chosen);
   if (is_observed(chosen)) return context.written;  // one matrix: no trajectories, no sweeps
   draw_trajectories(context, reader, chosen);
   draw_metric(context, runs, layout::kNodf, "NODF");
   draw_metric(context, runs, layout::kWnodf, "WNODF");
+  draw_z_scores(context, runs, layout::kNodf, "NODF");
+  draw_z_scores(context, runs, layout::kWnodf, "WNODF");
   draw_recovery(context, runs);
   draw_distances(context, runs);
+  draw_trend(context, runs);
   draw_scores(context, runs);
   return context.written;
 }

@@ -1,6 +1,7 @@
 #include "hdf5_io.hpp"
 
 #include <algorithm>
+#include <mutex>
 
 namespace allocsim {
 namespace {
@@ -20,7 +21,40 @@ hsize_t rows_per_chunk(hsize_t rows, hsize_t cols) {
   return std::max<hsize_t>(1, std::min<hsize_t>(rows, 131072 / std::max<hsize_t>(1, cols)));
 }
 
+// Writes through `write`, then flushes and closes `ds`; abandons it when
+// anything fails.
+template <class Write>
+void write_then_close(H5::DataSet& ds, Write&& write) {
+  try {
+    write();
+  } catch (...) {
+    abandon(ds);
+    throw;
+  }
+  flush_and_close(ds);
+}
+
 }  // namespace
+
+void abandon(const H5::IdComponent& object) {
+  const hid_t id = object.getId();
+  if (id >= 0 && H5Iis_valid(id) > 0) H5Iinc_ref(id);
+}
+
+void flush_and_close(H5::DataSet& dataset) {
+  if (dataset.getId() < 0 || H5Iis_valid(dataset.getId()) <= 0) return;
+  if (H5Dflush(dataset.getId()) < 0) {
+    abandon(dataset);
+    throw H5::DataSetIException("flush_and_close", "H5Dflush failed");
+  }
+  dataset.close();
+}
+
+void prepare_hdf5() {
+  static std::once_flag once;
+  std::call_once(once, [] { H5dont_atexit(); });
+  H5::Exception::dontPrint();  // per thread in a thread-safe HDF5
+}
 
 std::vector<std::string> read_text_dataset(const H5::DataSet& dataset) {
   const H5::DataSpace space = dataset.getSpace();
@@ -72,7 +106,7 @@ void write_matrix(H5::Group& group, const std::string& name, const Matrix& value
   const hsize_t chunk[2] = {rows_per_chunk(dims[0], dims[1]), std::max<hsize_t>(1, dims[1])};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::IEEE_F64LE, H5::DataSpace(2, dims),
                                        compressed(2, chunk));
-  ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+  write_then_close(ds, [&] { ds.write(values.data(), H5::PredType::NATIVE_DOUBLE); });
 }
 
 void write_vector(H5::Group& group, const std::string& name, const Vector& values) {
@@ -80,7 +114,7 @@ void write_vector(H5::Group& group, const std::string& name, const Vector& value
   const hsize_t chunk[1] = {std::max<hsize_t>(1, std::min<hsize_t>(dims[0], 131072))};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::IEEE_F64LE, H5::DataSpace(1, dims),
                                        compressed(1, chunk));
-  ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+  write_then_close(ds, [&] { ds.write(values.data(), H5::PredType::NATIVE_DOUBLE); });
 }
 
 void write_access(H5::Group& group, const std::string& name, const AccessMask& values) {
@@ -91,14 +125,16 @@ void write_access(H5::Group& group, const std::string& name, const AccessMask& v
       std::max<hsize_t>(1, dims[1])};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::STD_U8LE, H5::DataSpace(2, dims),
                                        compressed(2, chunk));
-  ds.write(values.data(), H5::PredType::NATIVE_UINT8);
+  write_then_close(ds, [&] { ds.write(values.data(), H5::PredType::NATIVE_UINT8); });
 }
 
 void write_integers(H5::Group& group, const std::string& name,
                     const std::vector<long long>& values) {
   const hsize_t dims[1] = {values.size()};
   H5::DataSet ds = group.createDataSet(name, H5::PredType::STD_I64LE, H5::DataSpace(1, dims));
-  if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_LLONG);
+  write_then_close(ds, [&] {
+    if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_LLONG);
+  });
 }
 
 void write_texts(H5::Group& group, const std::string& name,
@@ -108,7 +144,9 @@ void write_texts(H5::Group& group, const std::string& name,
   H5::DataSet ds = group.createDataSet(name, type, H5::DataSpace(1, dims));
   std::vector<const char*> pointers;
   for (const auto& v : values) pointers.push_back(v.c_str());
-  if (!values.empty()) ds.write(pointers.data(), type);
+  write_then_close(ds, [&] {
+    if (!values.empty()) ds.write(pointers.data(), type);
+  });
 }
 
 }  // namespace allocsim

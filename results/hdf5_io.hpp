@@ -6,11 +6,13 @@
 
 #include <H5Cpp.h>
 
+#include <cerrno>
 #include <string>
 #include <vector>
 
 #include "allocsim/core/error.hpp"
 #include "allocsim/core/matrix.hpp"
+#include "allocsim/core/output_file.hpp"
 
 namespace allocsim {
 
@@ -40,16 +42,35 @@ auto read_guarded(const std::string& path, Read&& read) -> decltype(read()) {
   }
 }
 
-// Runs `write` and turns an HDF5 exception into a runtime_error naming
-// `path` (e.g. a full disk); the command line reports it with exit code 1.
+// Runs `write` and turns an HDF5 exception into a WriteError naming `path`
+// and the cause (e.g. "No space left on device"); the command line reports
+// it with exit code 1.
 template <class Write>
 auto write_guarded(const std::string& path, Write&& write) -> decltype(write()) {
   try {
     return write();
   } catch (const H5::Exception& e) {
-    throw std::runtime_error(path + ": could not be written (" + e.getDetailMsg() + ")");
+    const int error = errno;
+    throw WriteError(path, write_failure_cause(path, "HDF5: " + e.getDetailMsg(), error));
   }
 }
+
+// Leaves an HDF5 object (a dataset, a file) open for good instead of closing
+// it: after a failed write, closing flushes into the failed file again, and
+// HDF5 1.10 can then crash. The C++ handle's own close only drops a
+// reference. The process keeps the object until it ends; HDF5's end-of-
+// process cleanup is off (prepare_hdf5), so it is never flushed.
+void abandon(const H5::IdComponent& object);
+
+// Flushes a dataset's cached chunks, then closes it: a write that fails
+// (a full disk) is an exception here, never in a destructor. On failure the
+// dataset is abandoned and the exception goes on.
+void flush_and_close(H5::DataSet& dataset);
+
+// Turns off HDF5's diagnostics on stderr and its end-of-process cleanup (which
+// would flush abandoned files). Idempotent; call before any other HDF5 call
+// where possible (the command line does so first thing).
+void prepare_hdf5();
 
 // The last part of a layout path: "allocation/total" -> "total".
 std::string leaf_name(const std::string& path);

@@ -58,6 +58,10 @@ AllocationRecorder RunWriter::record_allocation(long agents, long partners) {
   });
 }
 
+AllocationRecorder::State::~State() {
+  for (const H5::DataSet* ds : {&snapshots, &round_end, &prices}) abandon(*ds);
+}
+
 AllocationRecorder::AllocationRecorder(std::unique_ptr<State> state) : state_(std::move(state)) {}
 AllocationRecorder::~AllocationRecorder() = default;
 AllocationRecorder::AllocationRecorder(AllocationRecorder&&) noexcept = default;
@@ -90,6 +94,9 @@ void AllocationRecorder::add_snapshot(const Matrix& counts, long round_end, cons
 void AllocationRecorder::finish(const RunResult& result) {
   return write_guarded(state_->path, [&]() -> void {
     write_matrix(state_->allocation, leaf_name(layout::kTotal), result.total);
+    flush_and_close(state_->snapshots);
+    flush_and_close(state_->round_end);
+    if (state_->has_prices) flush_and_close(state_->prices);
   });
 }
 

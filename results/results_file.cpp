@@ -8,6 +8,7 @@
 
 #include "allocsim/core/atomic_file.hpp"
 #include "allocsim/core/error.hpp"
+#include "allocsim/core/output_file.hpp"
 #include "allocsim/results/layout.hpp"
 #include "hdf5_io.hpp"
 #include "run_group.hpp"
@@ -34,30 +35,37 @@ std::string runs_path(const std::string& name) {
   return std::string("/") + layout::kRuns + "/" + name;
 }
 
-// Closes `file` and renames `temporary` onto `path`; InputError naming
-// `path` with the system's reason otherwise (the temporary is removed).
-void close_and_rename(H5::H5File& file, const std::string& temporary, const std::string& path) {
-  try {
+// Flushes and closes `file`, then renames `temporary` onto `target` (the
+// file `path` leads to); a
+// WriteError naming `path` and the cause otherwise (the caller's destructor
+// abandons the file and removes the temporary).
+void close_and_rename(H5::H5File& file, const std::string& temporary, const std::string& target,
+                      const std::string& path) {
+  write_guarded(path, [&] {
     file.flush(H5F_SCOPE_GLOBAL);
     file.close();
-  } catch (const H5::Exception& e) {
+  });
+  if (std::rename(temporary.c_str(), target.c_str()) != 0) {
+    const int error = errno;
     std::remove(temporary.c_str());
-    throw InputError(path, "could not be written completely (" + e.getDetailMsg() + ")");
-  }
-  if (std::rename(temporary.c_str(), path.c_str()) != 0) {
-    const std::string reason = std::strerror(errno);
-    std::remove(temporary.c_str());
-    throw InputError(path, "could not be written (" + reason + ")");
+    throw WriteError(path, std::strerror(error));
   }
 }
 
-// Closes an uncommitted file and removes its temporary name.
+// An uncommitted file: abandoned (hdf5_io.hpp), its temporary name removed.
 void discard(H5::H5File& file, const std::string& temporary) {
-  try {
-    file.close();
-  } catch (const H5::Exception&) {
-  }
+  abandon(file);
   std::remove(temporary.c_str());
+}
+
+// The failure to create or open `temporary` for `path`: InputError when
+// the folder is missing or not writable, WriteError when the disk is full.
+[[noreturn]] void refuse_temporary(const std::string& path, const std::string& temporary, int error,
+                                   const std::string& doing) {
+  std::remove(temporary.c_str());
+  const std::string cause = write_failure_cause(path, "", error);
+  if (!cause.empty()) throw WriteError(path, cause);
+  throw InputError(path, "cannot be " + doing + "; check that the folder exists and is writable");
 }
 
 // The writer of /runs/<name>, which exists in `file`.
@@ -97,7 +105,7 @@ std::string utc_timestamp() {
   return text;
 }
 
-void silence_hdf5_diagnostics() { H5::Exception::dontPrint(); }
+void silence_hdf5_diagnostics() { prepare_hdf5(); }
 
 // ---- RunWriter ----
 
@@ -155,22 +163,26 @@ struct ResultsFile::File {
 ResultsFile::ResultsFile(std::string path, const std::string& experiment_text,
                          const std::string& tool_version)
     : path_(std::move(path)),
-      temporary_(temporary_name_for(path_)),
+      target_(require_regular_output(path_, path_).path),
+      temporary_(temporary_name_for(target_)),
       file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
+  require_not_an_input(target_, path_);
   try {
+    errno = 0;
     file_->file = H5::H5File(temporary_, H5F_ACC_TRUNC);
   } catch (const H5::Exception&) {
-    std::remove(temporary_.c_str());
-    throw InputError(path_, "cannot be written; check that the folder exists and is writable");
+    refuse_temporary(path_, temporary_, errno, "written");
   }
-  H5::H5File& f = file_->file;
-  set_text_attribute(f, layout::kFormatAttribute, layout::kResultsFormat);
-  set_integer_attribute(f, layout::kFormatVersion, layout::kResultsFormatVersion);
-  set_text_attribute(f, layout::kToolVersion, tool_version);
-  set_text_attribute(f, layout::kCreatedUtc, utc_timestamp());
-  set_text_attribute(f, layout::kExperiment, experiment_text);
-  f.createGroup(layout::kRuns);
+  write_guarded(path_, [&] {
+    H5::H5File& f = file_->file;
+    set_text_attribute(f, layout::kFormatAttribute, layout::kResultsFormat);
+    set_integer_attribute(f, layout::kFormatVersion, layout::kResultsFormatVersion);
+    set_text_attribute(f, layout::kToolVersion, tool_version);
+    set_text_attribute(f, layout::kCreatedUtc, utc_timestamp());
+    set_text_attribute(f, layout::kExperiment, experiment_text);
+    f.createGroup(layout::kRuns);
+  });
 }
 
 ResultsFile::~ResultsFile() {
@@ -189,18 +201,17 @@ RunWriter ResultsFile::run(const std::string& name) {
 }
 
 void ResultsFile::copy_run_from(const std::string& other_path, const std::string& run) {
-  return write_guarded(path_, [&]() -> void {
-    const std::string source = runs_path(run);
-    try {
-      const H5::H5File other(other_path, H5F_ACC_RDONLY);
-      if (H5Ocopy(other.getId(), source.c_str(), file_->file.getId(), source.c_str(), H5P_DEFAULT,
-                  H5P_DEFAULT) >= 0) {
-        return;
-      }
-    } catch (const H5::Exception&) {
-    }
-    throw InputError(other_path, "could not be copied into " + path_);
-  });
+  const std::string source = runs_path(run);
+  const H5::H5File other =
+      read_guarded(other_path, [&] { return H5::H5File(other_path, H5F_ACC_RDONLY); });
+  errno = 0;
+  if (H5Ocopy(other.getId(), source.c_str(), file_->file.getId(), source.c_str(), H5P_DEFAULT,
+              H5P_DEFAULT) < 0) {
+    const int error = errno;
+    throw WriteError(
+        path_, write_failure_cause(
+                   path_, "HDF5: copying " + source + " of " + other_path + " failed", error));
+  }
 }
 
 void ResultsFile::write_summary(const SummaryTable& table) {
@@ -216,7 +227,7 @@ void ResultsFile::write_summary(const SummaryTable& table) {
 }
 
 void ResultsFile::commit() {
-  close_and_rename(file_->file, temporary_, path_);
+  close_and_rename(file_->file, temporary_, target_, path_);
   committed_ = true;
 }
 
@@ -228,21 +239,23 @@ struct ResultsUpdate::File {
 
 ResultsUpdate::ResultsUpdate(std::string path)
     : path_(std::move(path)),
-      temporary_(temporary_name_for(path_)),
+      target_(require_regular_output(path_, path_).path),
+      temporary_(temporary_name_for(target_)),
       file_(std::make_unique<File>()) {
   silence_hdf5_diagnostics();
   std::error_code error;
-  std::filesystem::copy_file(path_, temporary_, std::filesystem::copy_options::overwrite_existing,
+  std::filesystem::copy_file(target_, temporary_, std::filesystem::copy_options::overwrite_existing,
                              error);
   if (error) {
+    // The file was read before: what fails is writing its copy.
     std::remove(temporary_.c_str());
-    throw InputError(path_, "cannot be copied for writing (" + error.message() + ")");
+    throw WriteError(path_, write_failure_cause(path_, error.message(), error.value()));
   }
   try {
+    errno = 0;
     file_->file = H5::H5File(temporary_, H5F_ACC_RDWR);
   } catch (const H5::Exception&) {
-    std::remove(temporary_.c_str());
-    throw InputError(path_, "cannot be opened for writing");
+    refuse_temporary(path_, temporary_, errno, "opened for writing");
   }
 }
 
@@ -255,7 +268,7 @@ RunWriter ResultsUpdate::run(const std::string& name) {
 }
 
 void ResultsUpdate::commit() {
-  close_and_rename(file_->file, temporary_, path_);
+  close_and_rename(file_->file, temporary_, target_, path_);
   committed_ = true;
 }
 

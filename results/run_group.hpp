@@ -13,7 +13,10 @@ struct RunWriter::Group {
   std::string path;  // the results file, for messages
 };
 
+// Datasets that finish() did not close (an exception on its way) are
+// abandoned, never closed (hdf5_io.hpp).
 struct AllocationRecorder::State {
+  ~State();
   H5::Group run_group, allocation;
   H5::DataSet snapshots, round_end, prices;
   bool has_prices = false;

@@ -43,40 +43,24 @@ Matrix gains_from_file(const ScenarioOptions& o) {
 }
 
 Matrix make_gains(const ScenarioOptions& o, std::uint64_t run, long n, long m) {
-  RandomStream rng(o.seed, run, StreamId::gains);
+  if (o.gains == GainsKind::file) return gains_from_file(o);  // taken as given, not scaled
   Matrix gains(n, m);
-  switch (o.gains) {
-    case GainsKind::rank_product:
-      for (long i = 0; i < n; ++i)
-        for (long j = 0; j < m; ++j)
-          gains(i, j) = (static_cast<double>(i + 1) / n) * (static_cast<double>(j + 1) / m);
-      break;
-    case GainsKind::trait_distance: {
-      Vector x(n), y(m);
-      for (long i = 0; i < n; ++i) x[i] = rng.uniform();
-      for (long j = 0; j < m; ++j) y[j] = rng.uniform();
-      for (long i = 0; i < n; ++i)
-        for (long j = 0; j < m; ++j)
-          gains(i, j) = -std::pow(std::abs(x[i] - y[j]), o.gains_exponent);
-      break;
-    }
-    case GainsKind::random:
-      for (long i = 0; i < n; ++i)
-        for (long j = 0; j < m; ++j) gains(i, j) = rng.uniform();
-      break;
-    case GainsKind::features: {
-      const long k = o.gains_rank;
-      Matrix u(n, k), v(m, k);
-      for (long i = 0; i < n; ++i)
-        for (long c = 0; c < k; ++c) u(i, c) = rng.normal();
-      for (long j = 0; j < m; ++j)
-        for (long c = 0; c < k; ++c) v(j, c) = rng.normal();
-      gains = u * v.transpose() / std::sqrt(static_cast<double>(k));
-      break;
-    }
-    case GainsKind::file:
-      return gains_from_file(o);  // taken as given, not scaled
+  if (o.gains == GainsKind::random) {
+    RandomStream rng(o.seed, run, StreamId::gains);
+    for (long i = 0; i < n; ++i)
+      for (long j = 0; j < m; ++j) gains(i, j) = rng.uniform();
+    return gains * o.gains_scale;
   }
+  const ScenarioTraits traits = scenario_traits(o, run);
+  if (traits.distance) {
+    for (long i = 0; i < n; ++i)
+      for (long j = 0; j < m; ++j)
+        gains(i, j) =
+            -std::pow(std::abs(traits.rows(i, 0) - traits.columns(j, 0)), o.gains_exponent);
+  } else {
+    gains = traits.rows * traits.columns.transpose();
+  }
+  if (o.gains == GainsKind::features) gains /= std::sqrt(static_cast<double>(traits.rows.cols()));
   return gains * o.gains_scale;
 }
 
@@ -228,6 +212,46 @@ void ScenarioOptions::validate() const {
   require(capacities_exponent >= 0, "capacities_exponent", "must be >= 0");
   require(capacities_spread >= 0, "capacities_spread", "must be >= 0");
   require(access_density > 0 && access_density <= 1, "access_density", "must be in (0, 1]");
+}
+
+ScenarioTraits scenario_traits(const ScenarioOptions& o, std::uint64_t run) {
+  const long n = o.agents, m = o.partners;
+  ScenarioTraits traits;
+  switch (o.gains) {
+    case GainsKind::rank_product:
+      traits.rows.resize(n, 1);
+      traits.columns.resize(m, 1);
+      for (long i = 0; i < n; ++i) traits.rows(i, 0) = static_cast<double>(i + 1) / n;
+      for (long j = 0; j < m; ++j) traits.columns(j, 0) = static_cast<double>(j + 1) / m;
+      traits.names = {"rank"};
+      break;
+    case GainsKind::trait_distance: {
+      RandomStream rng(o.seed, run, StreamId::gains);
+      traits.rows.resize(n, 1);
+      traits.columns.resize(m, 1);
+      for (long i = 0; i < n; ++i) traits.rows(i, 0) = rng.uniform();
+      for (long j = 0; j < m; ++j) traits.columns(j, 0) = rng.uniform();
+      traits.names = {"trait"};
+      traits.distance = true;
+      break;
+    }
+    case GainsKind::features: {
+      RandomStream rng(o.seed, run, StreamId::gains);
+      const long k = o.gains_rank;
+      traits.rows.resize(n, k);
+      traits.columns.resize(m, k);
+      for (long i = 0; i < n; ++i)
+        for (long c = 0; c < k; ++c) traits.rows(i, c) = rng.normal();
+      for (long j = 0; j < m; ++j)
+        for (long c = 0; c < k; ++c) traits.columns(j, c) = rng.normal();
+      for (long c = 1; c <= k; ++c) traits.names.push_back("feature " + std::to_string(c));
+      break;
+    }
+    case GainsKind::random:
+    case GainsKind::file:
+      break;
+  }
+  return traits;
 }
 
 TransportProblem make_scenario(const ScenarioOptions& o, std::uint64_t run) {

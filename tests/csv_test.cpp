@@ -203,7 +203,7 @@ TEST_CASE("words spelling NaN are labels among labels and refused among numbers"
 TEST_CASE("empty and NA cells are errors naming the cell unless read as 0") {
   CHECK_THAT(error_of(write_temp("na", "1,2,3\n4,NA,6\n")),
              Catch::StartsWith("csv_test_na.csv:2: column 2 holds NA") &&
-                 Catch::Contains("--missing zero"));
+                 Catch::Contains("missing = zero"));
   CHECK_THAT(error_of(write_temp("empty_cell", "1,2,3\n4,,6\n")),
              Catch::StartsWith("csv_test_empty_cell.csv:2: column 2 is empty"));
   CHECK_THAT(error_of(write_temp("na_first", "a,b\nNA,1\n2,3\n")),

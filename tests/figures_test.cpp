@@ -368,3 +368,109 @@ TEST_CASE("unusable figure data is refused with a reason", "[figures]") {
       Catch::Contains("no answered case"));
   CHECK(fs::directory_iterator(folder.path) == fs::directory_iterator());
 }
+
+namespace {
+
+// The figures against temperature with `count` levels of a factor (series,
+// or panels), named `text` when given; level k's values are shifted by k.
+std::vector<std::string> draw_by_level(const TemporaryFolder& folder, const FigureOptions& options,
+                                       int count, bool panels, const std::string& text = "") {
+  Factor factor{text.empty() ? "scenario.capacities_exponent" : text, {}, panels};
+  const std::vector<std::string> names = {"0", "0.3", "0.6", "0.9", "1.2", "1.5"};
+  for (int k = 0; k < count; ++k) factor.levels.push_back(text.empty() ? names[k % 6] : text);
+  MetricAgainstTemperature metric{"NODF by level", "NODF", {}, {}, "curveball null model", factor};
+  ZScoresAgainstTemperature z{"z by level", "NODF", "curveball null model", {}, 2, factor};
+  TemperatureRecovery recovery{"recovery by level", {}, "95% interval", factor};
+  DistanceAgainstTemperature distance{"distance by level", "total variation", {}, {}, factor};
+  TrendSummary trend{"trend by level", "nodf_z_score", "dynamics.temperature", 0.95, 2, {}, factor};
+  for (int k = 0; k < count; ++k) {
+    for (auto p : sample_points()) {
+      p.level = k;
+      metric.runs.push_back({p.x, 40 + 3 * k + 10 * std::log10(p.x), kNoValue, kNoValue, k});
+      metric.null_band.push_back({p.x, 30.0 + k, 28.0 + k, 32.0 + k, k});
+      z.runs.push_back({p.x, -5 + k + 4 * std::log10(p.x), kNoValue, kNoValue, k});
+      recovery.runs.push_back(p);
+      distance.to_entropic.push_back({p.x, 0.01 * (k + 1) * p.x, kNoValue, kNoValue, k});
+      distance.to_exact.push_back({p.x, 0.3 + 0.05 * k, kNoValue, kNoValue, k});
+    }
+    trend.rows.push_back({k, 10, 0.5, 0.01, 1.0 + k, 0.5 + k, 1.5 + k, 10, k, 10 - k});
+  }
+  if (!text.empty()) metric.title = z.title = recovery.title = distance.title = text;
+  return {draw_metric_against_temperature(metric, folder.stem("metric"), options),
+          draw_z_scores_against_temperature(z, folder.stem("z"), options),
+          draw_temperature_recovery(recovery, folder.stem("recovery"), options),
+          draw_distance_against_temperature(distance, folder.stem("distance"), options),
+          draw_trend_summary(trend, folder.stem("trend"), options)};
+}
+
+}  // namespace
+
+TEST_CASE("figures against temperature draw one series or one panel per level", "[figures]") {
+  TemporaryFolder folder("levels");
+  for (const bool panels : {false, true}) {
+    INFO("panels: " << panels);
+    // Six levels as images: the series figures widen for the legend, panels
+    // come in two rows of three.
+    const std::vector<std::string> images = draw_by_level(folder, {}, 6, panels);
+    const std::vector<std::pair<unsigned, unsigned>> sizes =
+        panels ? std::vector<std::pair<unsigned, unsigned>>{{1680, 960},
+                                                            {1680, 960},
+                                                            {1680, 960},
+                                                            {1680, 960},
+                                                            {1200, 650}}
+               : std::vector<std::pair<unsigned, unsigned>>{
+                     {1200, 700}, {1200, 700}, {1100, 800}, {1400, 650}, {1200, 650}};
+    for (std::size_t k = 0; k < images.size(); ++k) {
+      INFO(images[k]);
+      const PngSize png = read_png_size(images[k]);
+      CHECK(png.valid);
+      CHECK(png.width == sizes[k].first);
+      CHECK(png.height == sizes[k].second);
+    }
+    // Three levels as scripts: each level is named, in the legend or a panel title.
+    FigureOptions script_only;
+    script_only.script_only = true;
+    for (const auto& path : draw_by_level(folder, script_only, 3, panels)) {
+      INFO(path);
+      const std::string script = read_text(path);
+      for (const std::string level : {"0", "0.3", "0.6"}) {
+        const bool trend = fs::path(path).stem() == "trend";
+        const std::string named =
+            trend    ? quote_gnuplot_tic_label(level)
+            : panels ? quote_gnuplot_text("scenario.capacities_exponent = " + level)
+                     : quote_gnuplot_text(level);
+        CHECK(script.find(named) != std::string::npos);
+      }
+      // Series: styles 1 to 3, one per level; panels: style 1 in every panel.
+      const bool trend = fs::path(path).stem() == "trend";
+      CHECK((script.find(" ls 3 ") != std::string::npos) == (!panels || trend));
+      CHECK((script.find("set multiplot layout 1,3") != std::string::npos) == (panels && !trend));
+    }
+  }
+}
+
+TEST_CASE("level names and the factor key with gnuplot syntax run nothing", "[figures]") {
+  FigureOptions script_only;
+  script_only.script_only = true;
+  for (std::size_t k = 0; k < kHostileLabels.size(); ++k) {
+    const std::string& label = kHostileLabels[k];
+    INFO("label: " << label);
+    TemporaryFolder folder("hostile-levels");
+    WorkingDirectory cwd(folder.path);
+    for (const bool panels : {false, true}) {
+      // Every script holds the label only as a quoted literal.
+      for (const auto& path : draw_by_level(folder, script_only, 2, panels, label)) {
+        INFO(path);
+        const std::string script = read_text(path);
+        CHECK((script.find(quote_gnuplot_text(label)) != std::string::npos ||
+               script.find(quote_gnuplot_tic_label(label)) != std::string::npos));
+      }
+      // gnuplot draws the two that name commands (series and panels of one, series of the other).
+      if (k < 2 && (!panels || k == 0)) {
+        for (const auto& path : draw_by_level(folder, {}, 2, panels, label))
+          CHECK(read_png_size(path).valid);
+      }
+    }
+    CHECK_FALSE(fs::exists(folder.path / "PWNED"));
+  }
+}

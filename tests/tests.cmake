@@ -56,6 +56,7 @@ allocsim_reference_test(gains_vs_glm gains_vs_glm.py --probe $<TARGET_FILE:gains
 allocsim_reference_test(latent_vs_scipy latent_vs_scipy.py --probe $<TARGET_FILE:gains_probe>)
 allocsim_unit_test(gains_reconstruction allocsim::analysis)
 allocsim_cli_test(gains_reconstruction_cli gains_reconstruction_cli.py)
+allocsim_cli_test(reconstruction_sweep reconstruction_sweep.py)
 allocsim_robustness_test(robustness_sweeps robustness.py --group identity --group swept --group orphans --group lock --group signals)
 allocsim_robustness_test(robustness_outputs robustness.py --group outputs --group disk-full)
 allocsim_robustness_test(robustness_inputs robustness.py --group up-front --group edge)

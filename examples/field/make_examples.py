@@ -11,6 +11,10 @@ meadow_match.csv      gains of each pollinator on each plant from how well
                       tongue length fits corolla depth, -|depth - tongue| in
                       mm, rows and columns in another order than the visits
                       (they are matched by label).
+meadow_plant_traits.csv, meadow_pollinator_traits.csv
+                      the traits behind meadow_match.csv: corolla depth of
+                      each plant and tongue length of each pollinator, mm,
+                      rounded to 0.1 (for --row-traits/--column-traits).
 trade_exports.csv     country x product export values in whole US dollars,
                       nested (diversified countries export the complex
                       products); one product nobody exported (all-zero column).
@@ -58,6 +62,10 @@ def meadow(rng):
     write("meadow_visits.csv", visits, PLANTS, POLLINATORS, lambda v: str(int(v)))
     write("meadow_match.csv", np.round(match[r][:, c], 1), [PLANTS[k] for k in r],
           [POLLINATORS[k] for k in c], lambda v: f"{v:g}")
+    write("meadow_plant_traits.csv", np.round(depth, 1)[:, None], PLANTS, ["corolla depth mm"],
+          lambda v: f"{v:g}")
+    write("meadow_pollinator_traits.csv", np.round(tongue, 1)[:, None], POLLINATORS,
+          ["tongue length mm"], lambda v: f"{v:g}")
 
 
 def trade(rng):

@@ -70,6 +70,7 @@ _export("solve_entropic", ("gains", "access"), ("budgets",), ("capacities",))
 _export("estimate_temperature", ("allocation", "gains", "access"))
 _export("analyze", ("allocation", "gains", "access"), wrap=False)
 _export("fit_gains", ("allocation", "access"))
+_export("fit_latent_association", ("allocation", "access"))
 for _name in ("nodf", "wnodf", "fitness_complexity", "eci", "gradient_order",
               "curveball", "bicm", "fixed_margins"):
     _export(_name, ("matrix",))

@@ -1,10 +1,11 @@
-// estimate_temperature, analyze and fit_gains: the analysis of one
-// allocation. analyze returns exactly the object `allocsim analyze --json`
+// estimate_temperature, analyze, fit_gains and fit_latent_association: the
+// analysis of one allocation. analyze returns exactly the object `allocsim analyze --json`
 // prints (the same function writes it).
 #include <cmath>
 
 #include "allocsim/analysis/allocation_report.hpp"
 #include "allocsim/analysis/gains_fit.hpp"
+#include "allocsim/analysis/gains_reconstruction.hpp"
 #include "allocsim/analysis/temperature.hpp"
 #include "allocsim/core/error.hpp"
 #include "arguments.hpp"
@@ -187,6 +188,7 @@ py::dict fit_gains_binding(const py::object& allocation, const py::object& featu
   options.read("tolerance", fit.tolerance);
   options.read("max_iterations", fit.max_iterations);
   options.read("max_lambda", fit.max_lambda);
+  options.read("confidence", fit.confidence);
   fit.validate();
   // The fit profiles the margins out and never reads the gains: zeros stand in.
   ObservedAllocation observed =
@@ -203,6 +205,14 @@ py::dict fit_gains_binding(const py::object& allocation, const py::object& featu
   d["names"] = names;
   d["theta_over_epsilon"] = to_array(std::move(r.theta_over_epsilon));
   d["standard_errors"] = to_array(std::move(r.standard_errors));
+  d["interval_low"] = to_array(std::move(r.ci_low));
+  d["interval_high"] = to_array(std::move(r.ci_high));
+  d["confidence"] = r.confidence;
+  d["deviance"] = r.fit.deviance;
+  d["degrees_of_freedom"] = r.fit.degrees_of_freedom;
+  d["log_likelihood"] = r.fit.log_likelihood;
+  d["aic"] = r.fit.aic;
+  d["bic"] = r.fit.bic;
   Matrix covariance = r.covariance;
   d["covariance"] = to_array(std::move(covariance));
   d["moment_error"] = r.moment_error;
@@ -213,6 +223,87 @@ py::dict fit_gains_binding(const py::object& allocation, const py::object& featu
   d["coupling"] = r.coupling.size()
                       ? to_array(expand_to_input(r.coupling, observed, p.rows(), p.cols()))
                       : to_array(Matrix());
+  return d;
+}
+
+// ---- fit_latent_association ----
+
+// Kept rows (or columns) of `kept` put back at their input positions; NaN
+// in the left-out ones.
+Matrix scores_in_input_order(const Matrix& kept, const std::vector<Eigen::Index>& positions,
+                             Eigen::Index count) {
+  Matrix out = Matrix::Constant(count, kept.cols(), std::nan(""));
+  for (std::size_t k = 0; k < positions.size(); ++k)
+    out.row(positions[k]) = kept.row(static_cast<Eigen::Index>(k));
+  return out;
+}
+
+LatentAssociationOptions latent_options(const Options& options) {
+  LatentAssociationOptions latent;
+  const py::object rank = options.value("rank");
+  if (!rank.is_none()) {
+    if (py::isinstance<py::str>(rank)) {
+      if (rank.cast<std::string>() != "auto")
+        value_error("rank", "'" + rank.cast<std::string>() + "' is not 'auto' or a K >= 0");
+      latent.rank = -1;
+    } else if (py::isinstance<py::int_>(rank) && !py::isinstance<py::bool_>(rank)) {
+      latent.rank = rank.cast<long>();
+      if (latent.rank < 0) value_error("rank", "must be 'auto' or a whole number >= 0");
+    } else {
+      throw py::type_error("rank: must be 'auto' or an int");
+    }
+  }
+  options.read("max_rank", latent.max_rank);
+  options.read("tolerance", latent.tolerance);
+  options.read("max_sweeps", latent.max_sweeps);
+  options.read("random_starts", latent.random_starts);
+  long seed = static_cast<long>(latent.seed);
+  options.read("seed", seed);
+  if (seed < 0) value_error("seed", "must be >= 0");
+  latent.seed = static_cast<std::uint64_t>(seed);
+  latent.validate();
+  return latent;
+}
+
+py::dict fit_latent_binding(const py::object& allocation, const py::object& access,
+                            const py::kwargs& kwargs) {
+  const Options options("fit_latent_association", kwargs);
+  const Matrix p = matrix_argument(allocation, "allocation");
+  // The fit never reads the gains: zeros stand in.
+  ObservedAllocation observed =
+      observe_allocation(p, Matrix::Zero(p.rows(), p.cols()), access_argument(access, "access"));
+  apply_value_kind(options, observed);
+  GainsReconstructionOptions reconstruction;
+  reconstruction.latent = latent_options(options);
+  GainsReconstructionReport report;
+  {
+    py::gil_scoped_release release;
+    report = reconstruct_gains(observed, {}, reconstruction);
+  }
+  // The JSON of `allocsim analyze --json` for the scalar fields and the model table.
+  const py::object loads = py::module_::import("json").attr("loads");
+  const py::dict json = loads(gains_reconstruction_json(report).str());
+  py::dict d;
+  for (const auto& item : py::reinterpret_borrow<py::dict>(json["latent"])) {
+    const std::string key = py::str(item.first);
+    if (key != "row_scores" && key != "column_scores") d[item.first] = item.second;
+  }
+  LatentAssociationResult& l = *report.latent;
+  d["strengths"] = to_array(std::move(l.strengths));
+  d["strength_standard_errors"] = to_array(std::move(l.strength_errors));
+  d["row_scores"] = to_array(scores_in_input_order(l.row_scores, observed.kept_rows, p.rows()));
+  d["column_scores"] =
+      to_array(scores_in_input_order(l.column_scores, observed.kept_columns, p.cols()));
+  d["models"] = json["models"];
+  d["coupling"] = to_array(expand_to_input(l.coupling, observed, p.rows(), p.cols()));
+  Matrix association = expand_to_input(l.association, observed, p.rows(), p.cols());
+  for (const Eigen::Index i : observed.dropped_rows) association.row(i).setConstant(std::nan(""));
+  for (const Eigen::Index j : observed.dropped_columns)
+    association.col(j).setConstant(std::nan(""));
+  d["association"] = to_array(std::move(association));
+  d["counts"] = observed.counts;
+  d["units"] = observed.counts ? py::object(py::float_(observed.units)) : py::object(py::none());
+  d["note"] = observed.note;
   return d;
 }
 
@@ -280,13 +371,50 @@ void register_temperature(py::module_& m) {
        {"tolerance", py::float_(fit.tolerance),
         "stop when max_k |<F_k, pi> - <F_k, p>| / max|F_k| <= this; in (0, 1e-3]"},
        {"max_iterations", py::int_(fit.max_iterations), "Newton steps; >= 1"},
-       {"max_lambda", py::float_(fit.max_lambda),
-        "|lambda_k| * max|F_k| above this diverges; > 0"}},
+       {"max_lambda", py::float_(fit.max_lambda), "|lambda_k| * max|F_k| above this diverges; > 0"},
+       {"confidence", py::float_(fit.confidence),
+        "level of the likelihood-ratio intervals; in (0, 1)"}},
       "Result: status ('converged' | 'not_converged'), message, names, theta_over_epsilon\n"
-      "(one per feature), standard_errors and covariance (nan without counts), moment_error,\n"
+      "(one per feature), standard_errors and covariance (nan without counts), interval_low\n"
+      "and interval_high (likelihood-ratio interval of each weight at `confidence`; nan\n"
+      "without counts, +-inf when the profile never drops enough), confidence, deviance,\n"
+      "degrees_of_freedom, log_likelihood, aic, bic (nan without counts), moment_error,\n"
       "iterations, counts, units, note, coupling (n x m shares at the fit)."};
   m.def("fit_gains", &fit_gains_binding, register_function(m, fit_spec).c_str(),
         py::arg("allocation"), py::arg("features"), py::arg("access") = py::none());
+
+  const LatentAssociationOptions latent;
+  FunctionSpec latent_spec{
+      "fit_latent_association",
+      "Reconstructs the gains from the allocation alone: the row-column association model\n"
+      "RC(K) of Goodman (1979, 1985), gains/epsilon = sum_k sigma_k a_k b_k^T up to row and\n"
+      "column constants, fitted by maximum likelihood with the margins profiled out (as\n"
+      "`allocsim analyze --latent-rank`). Scores have zero mean and unit variance weighted\n"
+      "by the observed margins; sigma_1 is 1/epsilon for latent traits of unit spread.\n"
+      "rank='auto' chooses K from 0 to max_rank by BIC (needs counts). A rank at or above\n"
+      "the saturated one raises ValueError; a fit that does not converge is status\n"
+      "'not_converged'. Releases the GIL.",
+      {kAllocationArray, kAccessArray},
+      {"None"},
+      {{"rank", py::str("auto"), "'auto' or K >= 0, below min(n, m) - 1 of the kept table"},
+       {"max_rank", py::int_(latent.max_rank), "largest K that 'auto' tries; >= 1"},
+       {"values", py::str("auto"), "'auto', 'counts' or 'shares' (counts give standard errors)"},
+       {"units", py::none(), "N, the units the shares stand for"},
+       {"tolerance", py::float_(latent.tolerance),
+        "stop when every score equation holds to this, per unit; in (0, 1e-4]"},
+       {"max_sweeps", py::int_(latent.max_sweeps), "block coordinate sweeps per start; >= 1"},
+       {"random_starts", py::int_(latent.random_starts),
+        "seeded random starts besides the two deterministic ones; >= 0"},
+       {"seed", py::int_(static_cast<long>(latent.seed)), "seed of the random starts"}},
+      "Result with the fields of the 'latent' object of `allocsim analyze --json`: status,\n"
+      "message, rank, rank_chosen_by_bic, strengths, strength_standard_errors (nan without\n"
+      "counts), sweeps, score_equation_error, strength_meaning; row_scores (n x K) and\n"
+      "column_scores (m x K) as arrays in input order (nan in all-zero rows and columns);\n"
+      "models (the JSON's model table: independence, each latent rank, saturated);\n"
+      "association (n x m, gains/epsilon up to row and column constants; nan where left\n"
+      "out), coupling (n x m shares at the fit), counts, units, note."};
+  m.def("fit_latent_association", &fit_latent_binding, register_function(m, latent_spec).c_str(),
+        py::arg("allocation"), py::arg("access") = py::none());
 }
 
 }  // namespace allocsim::python

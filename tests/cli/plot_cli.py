@@ -3,9 +3,12 @@
 A small results file comes from `allocsim simulate`; a second copy gets, with
 h5py, more runs at other temperatures, their analysis (couplings, temperature
 estimates, distances, NODF/WNODF with null summaries) and a run whose name
-holds gnuplot command syntax. Checks: every announced file exists and is a
+holds gnuplot command syntax; a third copy splits the runs by a capacity law
+(three laws per temperature, with NODF z-scores). Checks: every announced file exists and is a
 valid PNG (signature and IHDR, PNG specification 5.2 and 11.2.2) of the
-expected size; absent data are skipped with a note; the scripts of a fixed
+expected size; absent data are skipped with a note; `--by` draws one series
+per law (picked and said on stdout when it is the only other swept key),
+`--panels` one panel per law, and a key that is not swept is refused; the scripts of a fixed
 file are the same at every generation; a hostile name runs nothing; bad
 input gives one line on stderr and a non-zero exit."""
 import argparse
@@ -21,7 +24,8 @@ import numpy as np
 
 HOSTILE_RUN = "run'; system 'touch PWNED'; '`touch PWNED`"
 SWEEP_FIGURES = ["nodf-vs-temperature", "wnodf-vs-temperature", "epsilon-vs-temperature",
-                 "distance-vs-temperature"]
+                 "distance-vs-temperature", "trend-summary"]
+LAWS = ["zipf", "uniform", "lognormal"]
 failures = []
 
 
@@ -103,8 +107,29 @@ def make_sweep_file(binary, folder, base):
     return path
 
 
+def make_by_file(folder, sweep):
+    """The sweep's runs, three per temperature, one per capacity law, with NODF z-scores."""
+    path = os.path.join(folder, "by.h5")
+    shutil.copy(sweep, path)
+    with h5py.File(path, "r+") as f:
+        runs = f["runs"]
+        del runs[HOSTILE_RUN]
+        names = sorted(runs)
+        for name in names:
+            for law in LAWS[1:]:
+                f.copy(runs[name], runs, name=name + "-" + law)
+        for index, name in enumerate(sorted(runs)):
+            law = next((x for x in LAWS[1:] if name.endswith(x)), LAWS[0])
+            runs[name].attrs["run_index"] = index
+            runs[name].attrs["scenario.capacities"] = law
+            analysis = runs[name]["analysis"]
+            analysis.attrs["nodf"] = analysis.attrs["nodf"] + 5 * LAWS.index(law)
+            analysis.attrs["nodf_z_score"] = (analysis.attrs["nodf"] - 35.0) / 2.0
+    return path
+
+
 def announced(result):
-    return [line for line in result.stdout.splitlines() if line.strip()]
+    return [line for line in result.stdout.splitlines() if line.strip() and not line.startswith("figures ")]
 
 
 def check_images(paths, folder, what):
@@ -165,7 +190,7 @@ def test_scripts_are_deterministic(binary, folder, sweep):
         result = run(binary, ["plot", sweep, "--out-dir", "scripts", "--script-only"], folder)
         check(result.returncode == 0, "script-only: exit %d: %s" % (result.returncode, result.stderr))
         files = announced(result)
-        check(len(files) == 6 and all(f.endswith(".gp") for f in files), "script-only: announced %s" % files)
+        check(len(files) == 7 and all(f.endswith(".gp") for f in files), "script-only: announced %s" % files)
         texts.append({f: open(os.path.join(folder, f)).read() for f in files})
     check(texts[0] == texts[1], "script-only: two generations differ")
     check(not any(f.endswith(".png") for f in os.listdir(os.path.join(folder, "scripts"))),
@@ -184,10 +209,54 @@ def test_formats(binary, folder, sweep):
     for fmt, magic in [("svg", b"<?xml"), ("pdf", b"%PDF-")]:
         result = run(binary, ["plot", sweep, "--out-dir", fmt, "--format", fmt], folder)
         files = announced(result)
-        check(result.returncode == 0 and len(files) == 6, "%s: exit %d, %s" % (fmt, result.returncode, files))
+        check(result.returncode == 0 and len(files) == 7, "%s: exit %d, %s" % (fmt, result.returncode, files))
         for path in files:
             with open(os.path.join(folder, path), "rb") as f:
                 check(path.endswith("." + fmt) and f.read(5) == magic, "%s: %s is not %s" % (fmt, path, fmt))
+
+
+def read_or_empty(path):
+    return open(path).read() if os.path.exists(path) else ""
+
+
+def test_by_level(binary, folder, by):
+    """One series (or panel) per capacity law; the swept key is picked and said when not named."""
+    result = run(binary, ["plot", by, "--out-dir", "auto"], folder)
+    lines = result.stdout.splitlines()
+    check(result.returncode == 0 and lines and "drawn by scenario.capacities" in lines[0],
+          "by: the other swept key is picked and said on stdout: %r" % lines[:1])
+    files = announced(result)
+    names = sorted(os.path.splitext(os.path.basename(f))[0] for f in files)
+    check("nodf-z-vs-temperature" in names and "trend-summary" in names, "by: announced %s" % names)
+    check_images(files, folder, "by")
+    script = run(binary, ["plot", by, "--out-dir", "by-scripts", "--by", "scenario.capacities",
+                          "--script-only"], folder)
+    text = read_or_empty(os.path.join(folder, "by-scripts", "nodf-vs-temperature.gp"))
+    check(all("'%s'" % law in text for law in LAWS) and "'scenario.capacities'" in text,
+          "by: the NODF figure names each law in its legend")
+    check("drawn by" not in script.stdout, "by: a named key is not announced")
+    panels = run(binary, ["plot", by, "--out-dir", "panels", "--by", "scenario.capacities", "--panels"], folder)
+    check(panels.returncode == 0, "panels: exit %d: %s" % (panels.returncode, panels.stderr))
+    check_images(announced(panels), folder, "panels")
+    nodf = os.path.join(folder, "panels", "nodf-vs-temperature.png")
+    size = png_size(nodf) if os.path.exists(nodf) else None
+    check(size is not None and size[0] > size[1] * 2, "panels: three panels side by side: %s" % (size,))
+    pooled = run(binary, ["plot", by, "--out-dir", "pooled", "--by", "none", "--script-only"], folder)
+    text = read_or_empty(os.path.join(folder, "pooled", "nodf-vs-temperature.gp"))
+    check(pooled.returncode == 0 and "'zipf'" not in text, "--by none pools the laws")
+
+
+def test_by_refusals(binary, folder, sweep, by):
+    cases = [(["plot", by, "--by", "dynamics.rule"], ["dynamics.rule", "scenario.capacities"]),
+             (["plot", by, "--by", "dynamics.temperature"], ["x axis", "scenario.capacities"]),
+             (["plot", sweep, "--panels"], ["--panels", "nothing besides the temperature"]),
+             (["plot", sweep, "--by", "scenario.capacities"], ["not a swept key"])]
+    for args, words in cases:
+        result = run(binary, args + ["--out-dir", "refused"], folder)
+        lines = result.stderr.strip().splitlines()
+        check(result.returncode == 2 and len(lines) == 1 and all(w in lines[0] for w in words),
+              "refused %s: exit %d, stderr %r" % (args, result.returncode, result.stderr))
+        check(not os.path.exists(os.path.join(folder, "refused")), "refused %s: a folder was made" % args)
 
 
 def test_bad_input(binary, folder, base):
@@ -219,6 +288,9 @@ def main():
         test_scripts_are_deterministic(binary, folder, sweep)
         test_formats(binary, folder, sweep)
         test_bad_input(binary, folder, base)
+        by = make_by_file(folder, sweep)
+        test_by_level(binary, folder, by)
+        test_by_refusals(binary, folder, sweep, by)
     if failures:
         sys.exit("%d check(s) failed" % len(failures))
     print("all plot checks passed")

@@ -11,7 +11,9 @@ runs say whether they settled.
   * /summary holds run_index, settled, capacity_error, window_change;
   * a price run at T = 1% of the gain range with the default 500 rounds is
     flagged (warning on stderr, "settled": false) and the same run with 3000
-    rounds and a burn-in of 1500 is not;
+    rounds and a burn-in of 1500 is not; `analyze` of the first says it had
+    not settled (text: a warning line and a caution under the temperature;
+    JSON: temperature.stationary false, with the reason), of the second not;
   * --from without --run, and --point past the sweep, exit 2 with one line.
 Prints one summary line; exits non-zero on any failure.
 Usage: replay_runs.py --allocsim PATH --data DIR
@@ -111,6 +113,26 @@ def main():
         check(long.returncode == 0 and json.loads(long.stdout)["settled"] is True,
               "3000 rounds with burn-in 1500: settled")
         check("not settled" not in long.stderr, "no warning for the settled run")
+
+        # The analysis of the unsettled run says so, in text and JSON; the settled one does not.
+        text = run([exe, "analyze", "short.h5"], folder)
+        lines = text.stdout.splitlines()
+        warned = [k for k, line in enumerate(lines) if line.startswith("warning: run-000000 had not settled")]
+        fitted = [k for k, line in enumerate(lines) if line.startswith("temperature:")]
+        check(text.returncode == 0 and len(warned) == 1 and "capacity error" in lines[warned[0]]
+              and "dynamics.burn_in" in lines[warned[0]], "analyze names the unsettled run: " + text.stdout[:600])
+        check(len(fitted) == 1 and fitted[0] + 1 < len(lines) and "non-stationary" in lines[fitted[0] + 1],
+              "analyze flags the temperature of the unsettled run")
+        report = run([exe, "analyze", "short.h5", "--json"], folder)
+        temperature = json.loads(report.stdout)["temperature"] if report.returncode == 0 else {}
+        check(temperature.get("stationary") is False and "had not settled" in temperature.get("not_stationary", ""),
+              "analyze --json flags the unsettled run's temperature: %s" % temperature.get("not_stationary"))
+        settled = run([exe, "analyze", "long.h5", "--json"], folder)
+        temperature = json.loads(settled.stdout)["temperature"] if settled.returncode == 0 else {}
+        check(settled.returncode == 0 and "stationary" not in temperature and "not_stationary" not in temperature,
+              "analyze --json of the settled run: not flagged")
+        check("had not settled" not in run([exe, "analyze", "long.h5"], folder).stdout,
+              "analyze of the settled run warns about nothing")
 
         for what, command in {
             "--from without --run": [exe, "simulate", "--from", "sweep.h5", "--out", "x.h5"],

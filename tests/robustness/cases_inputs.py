@@ -390,3 +390,33 @@ def _(t):
     r = t.allocsim("run", "s.ini", "--quiet")
     t.expect(r, 2, says=["dynamics.units", "s.ini:9"])
     t.absent("out.h5")
+
+
+@case("up-front", "run --replicates 99999999999 is refused at once, before any run is planned")
+def _(t):
+    t.write("s.ini", sweep_text())
+    r = t.allocsim("run", "s.ini", "--replicates", "99999999999", timeout=20)
+    t.expect(r, 2, says=["replicates", "more than a million runs"])
+    nothing_written(t)
+
+
+@case("up-front", "a grid of axes whose product exceeds a million runs is refused at once")
+def _(t):
+    t.write("s.ini", sweep_text().replace("replicates = 2", "scenario.seed = 1..5000\ndynamics.rounds = 10..5000\nreplicates = 1"))
+    r = t.allocsim("run", "s.ini", timeout=20)
+    t.expect(r, 2, says=["more than a million runs"])
+    nothing_written(t)
+
+
+@case("edge", "synth --units 1e300 is refused (it once became 1 unit per case)")
+def _(t):
+    r = t.allocsim("synth", "--out-dir", "set", "--units", "1e300", "--replicates", "1")
+    t.expect(r, 2, says=["--units", "1e300"])
+    t.absent("set")
+
+
+@case("edge", "synth --units loguniform(1, 1e20) is refused naming the law")
+def _(t):
+    r = t.allocsim("synth", "--out-dir", "set", "--units", "loguniform(1, 1e20)", "--replicates", "1")
+    t.expect(r, 2, says=["--units", "loguniform(1, 1e20)"])
+    t.absent("set")

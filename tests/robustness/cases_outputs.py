@@ -651,3 +651,226 @@ def _(t):
         for name in os.listdir(fig):
             t.check(False, f"left in the figure folder: {name}")
     t.check(".png" not in r.out, f"figures listed as written: {r.out!r}")
+
+
+# --- 5. more of the same classes, across the other commands -------------------
+
+def analysis_inputs(t):
+    t.write("alloc.csv", "10,20,30\n40,50,60\n")
+    t.write("gains.csv", "1,5,2\n7,3,9\n")
+
+
+def trend_file(t):
+    t.write("s.ini", sweep_text())
+    t.expect(t.allocsim("run", "s.ini", "--quiet"), 0)
+    return ["trend", "out.h5", "--metric", "window_change", "--z", "none"]
+
+
+@case("outputs", "analyze --save the allocation file is refused before any analysis, file unchanged")
+def _(t):
+    analysis_inputs(t)
+    t.snapshot("alloc.csv")
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--save", "alloc.csv")
+    t.expect(r, 2, says=["--save", "alloc.csv"])
+    t.check("analysed" not in r.out, "analysed before refusing")
+    t.unchanged("alloc.csv")
+
+
+@case("outputs", "analyze --save the gains file through a symlink is refused, file and link unchanged")
+def _(t):
+    analysis_inputs(t)
+    os.symlink("gains.csv", t.path("link.h5"))
+    t.snapshot("gains.csv", "link.h5")
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--save", "link.h5")
+    t.expect(r, 2, says=["--save", "gains.csv"])
+    t.unchanged("gains.csv", "link.h5")
+
+
+@case("outputs", "analyze --export-dir holding the allocation under an export's name is refused")
+def _(t):
+    analysis_inputs(t)
+    t.write("ex/agents.csv", "10,20,30\n40,50,60\n")
+    t.snapshot("ex")
+    r = t.allocsim("analyze", "--allocation", "ex/agents.csv", "--export-dir", "ex")
+    t.expect(r, 2, says=["--export-dir", "agents.csv"])
+    t.unchanged("ex")
+
+
+@case("outputs", "analyze: an input under the name of a gains-fit export is never overwritten")
+def _(t):
+    analysis_inputs(t)
+    t.write("ex/model_table.csv", "1,5,2\n7,3,9\n")
+    t.snapshot("ex/model_table.csv")
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--features", "ex/model_table.csv",
+                   "--export-dir", "ex")
+    t.expect(r, 2, says=["model_table.csv", "input"])
+    t.unchanged("ex/model_table.csv")
+
+
+@case("outputs", "analyze --save a symlink writes the target and keeps the link")
+def _(t):
+    analysis_inputs(t)
+    os.symlink("target.h5", t.path("link.h5"))
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--save", "link.h5")
+    t.expect(r, 0)
+    t.kind("link.h5", "symlink")
+    t.results("target.h5", runs=1)
+
+
+@case("outputs", "analyze --save a character device is refused; the device stays")
+def _(t):
+    analysis_inputs(t)
+    t.null_device("null")
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--save", "null")
+    t.expect(r, 2, says=["null", "not a regular file"])
+    t.kind("null", "chardev")
+
+
+@case("outputs", "analyze --export-dir a file is refused, the file unchanged")
+def _(t):
+    analysis_inputs(t)
+    t.snapshot("gains.csv")
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--export-dir", "gains.csv")
+    t.expect(r, 2, says=["gains.csv"])
+    t.unchanged("gains.csv")
+
+
+@case("outputs", "trend --csv the results file is refused, the results unchanged")
+def _(t):
+    args = trend_file(t)
+    t.snapshot("out.h5")
+    r = t.allocsim(*args, "--csv", "out.h5")
+    t.expect(r, 2, says=["--csv", "out.h5"])
+    t.unchanged("out.h5")
+
+
+@case("outputs", "trend --csv a character device writes through; the device stays")
+def _(t):
+    args = trend_file(t)
+    t.null_device("null")
+    r = t.allocsim(*args, "--csv", "null")
+    t.expect(r, 0)
+    t.kind("null", "chardev")
+
+
+@case("outputs", "trend --csv a symlink writes the target and keeps the link")
+def _(t):
+    args = trend_file(t)
+    os.symlink("table.csv", t.path("link.csv"))
+    r = t.allocsim(*args, "--csv", "link.csv")
+    t.expect(r, 0)
+    t.kind("link.csv", "symlink")
+    t.csv_rows("table.csv", min_rows=2)
+
+
+@case("outputs", "score --groups-csv the answers file is refused")
+def _(t):
+    benchmark_set(t)
+    t.snapshot("answers.csv")
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--groups-csv", "answers.csv")
+    t.expect(r, 2, says=["--groups-csv", "answers.csv"])
+    t.unchanged("answers.csv")
+
+
+@case("outputs", "score --out twice the same file is refused")
+def _(t):
+    benchmark_set(t)
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--out", "s.csv",
+                   "--out", "./s.csv")
+    t.expect(r, 2, says=["s.csv"])
+    t.absent("s.csv")
+
+
+@case("outputs", "score --out a symlinked .h5 writes the target and keeps the link")
+def _(t):
+    benchmark_set(t)
+    os.symlink("target.h5", t.path("link.h5"))
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--out", "link.h5")
+    t.expect(r, 0)
+    t.kind("link.h5", "symlink")
+    t.kind("target.h5", "file")
+
+
+@case("outputs", "score --out a FIFO writes the per-case CSV through it")
+def _(t):
+    benchmark_set(t)
+    reader = FifoReader(t.fifo("pipe"))
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--out", "pipe")
+    data = reader.close()
+    t.expect(r, 0)
+    t.check(data.startswith(b"case,"), f"read {data[:60]!r}")
+    t.kind("pipe", "fifo")
+
+
+@case("disk-full", "analyze --save on a full disk: exit 1 naming file and cause, nothing left")
+def _(t):
+    analysis_inputs(t)
+    full_disk(t, 0, size_kib=256)
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--save", "disk/a.h5")
+    t.expect(r, 1, says=["disk/a.h5", "no space left on device"])
+    only(t, "disk", [])
+
+
+@case("disk-full", "analyze --export-dir on a full disk: exit 1, no folder or partial file left")
+def _(t):
+    analysis_inputs(t)
+    full_disk(t, 0, size_kib=256)
+    r = t.allocsim("analyze", "--allocation", "alloc.csv", "--gains", "gains.csv", "--export-dir", "disk/ex/sub")
+    t.expect(r, 1, says=["disk/ex/sub", "no space left on device"])
+    only(t, "disk", [])
+
+
+@case("disk-full", "trend --csv on a full disk: exit 1, no partial CSV")
+def _(t):
+    args = trend_file(t)
+    full_disk(t, 0, size_kib=256)
+    r = t.allocsim(*args, "--csv", "disk/t.csv")
+    t.expect(r, 1, says=["disk/t.csv", "no space left on device"])
+    only(t, "disk", [])
+
+
+@case("disk-full", "score --out .h5 and --groups-csv on a full disk: exit 1, nothing left")
+def _(t):
+    benchmark_set(t)
+    full_disk(t, 0, size_kib=256)
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--out", "disk/s.h5")
+    t.expect(r, 1, says=["disk/s.h5", "no space left on device"])
+    r = t.allocsim("score", "--truth", "set/truth.csv", "--answers", "answers.csv", "--groups-csv", "disk/g.csv")
+    t.expect(r, 1, says=["disk/g.csv", "no space left on device"])
+    only(t, "disk", [])
+
+
+@case("disk-full", "demo on a full disk: exit 1 naming the cause, no folder left")
+def _(t):
+    full_disk(t, 0, size_kib=256)
+    r = t.allocsim("demo", "--out-dir", "disk/demo")
+    t.expect(r, 1, says=["disk/demo", "no space left on device"])
+    only(t, "disk", [])
+
+
+@case("disk-full", "run whose parts fill the disk midway: exit 1, one line, no crash, no temporaries")
+def _(t):
+    full_disk(t, 160, size_kib=1024)
+    t.write("s.ini", sweep_text(output="disk/out.h5", rounds=400).replace("agents = 6\npartners = 5",
+                                                                            "agents = 60\npartners = 50"))
+    r = t.allocsim("run", "s.ini", "--threads", "2", "--quiet")
+    t.expect(r, 1, says=["disk/out.h5", "no space left on device"])
+    t.absent("disk/out.h5", "disk/out.h5.lock")
+    parts = t.path("disk/out.h5.parts")
+    for name in os.listdir(parts) if os.path.isdir(parts) else []:
+        t.check(".tmp-" not in name, f"temporary part left: {name}")
+        if name.endswith(".h5"):
+            t.results(os.path.join("disk/out.h5.parts", name), runs=1)
+
+
+@case("disk-full", "simulate filling the disk midway through its snapshots: exit 1, earlier file unchanged")
+def _(t):
+    disk = t.tmpfs("disk", 2048)
+    r = t.allocsim("simulate", *SIM, "--out", "disk/one.h5")
+    t.expect(r, 0)
+    t.snapshot("disk/one.h5")
+    t.fill(disk, 400)
+    r = t.allocsim("simulate", *BIG, "--out", "disk/one.h5")
+    t.expect(r, 1, says=["disk/one.h5", "no space left on device"])
+    t.unchanged("disk/one.h5")
+    only(t, "disk", ["one.h5"])

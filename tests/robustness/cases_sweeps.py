@@ -209,6 +209,22 @@ def _(t):
     t.unchanged("out.h5")
 
 
+@case("identity", "a finished file and more replicates: refused naming sweep.replicates, file unchanged")
+def _(t):
+    finished(t)
+    r = t.allocsim("run", "s.ini", "--replicates", "3")
+    t.expect(r, 2, says=["sweep.replicates is 2 there, 3 now"])
+    t.unchanged("out.h5")
+
+
+@case("identity", "a finished file and a key swept now but not then: refused naming the axis")
+def _(t):
+    finished(t)
+    r = t.allocsim("run", "s.ini", "--sweep.dynamics.price_step", "0.2, 0.5")
+    t.expect(r, 2, says=["sweep.dynamics.price_step"])
+    t.unchanged("out.h5")
+
+
 @case("identity", "a finished file and --restart with another value: replaced at the new value")
 def _(t):
     finished(t)
@@ -347,6 +363,24 @@ def _(t):
     r = t.allocsim("run", "s.ini", "--sweep.dynamics.temprature", "0.1, 0.2")
     t.expect(r, 2, says=["dynamics.temperature"])
     t.absent("out.h5", "out.h5.parts")
+
+
+@case("swept", "an unknown option followed by its value names the nearest option (simulate, run)")
+def _(t):
+    t.write("s.ini", sweep_text())
+    r = t.allocsim("simulate", "--dynamics.temprature", "0.1", "--out", "one.h5")
+    t.expect(r, 2, says=["--dynamics.temprature", "dynamics.temperature"])
+    r = t.allocsim("run", "s.ini", "--treads", "2")
+    t.expect(r, 2, says=["--treads", "--threads"])
+    t.absent("one.h5", "out.h5", "out.h5.parts")
+
+
+@case("swept", "an unambiguous abbreviation of an option still works (run --thread 1)")
+def _(t):
+    t.write("s.ini", sweep_text())
+    r = t.allocsim("run", "s.ini", "--thread", "1", "--quiet")
+    t.expect(r, 0)
+    t.results("out.h5", runs=RUNS)
 
 
 @case("swept", "--sweep.KEY that breaks combine = zip is refused")

@@ -32,18 +32,7 @@ CASES = []  # (group, title, function)
 # note of its issue. Such a case still runs: its failure is printed as OPEN
 # (not counted), and it is printed as FIXED when it passes, so that it is
 # taken off this list.
-KNOWN_OPEN = {
-    "synth: a set whose allocations cannot fit in memory is refused with the estimate",
-    "score --out a character device writes through; the device stays",
-    "score --out the answers file is refused",
-    "score --out the truth file is refused",
-    "simulate on a full disk: one line naming file and cause, exit 1, nothing left",
-    "simulate on a full disk leaves an earlier file unchanged",
-    "run whose parts do not fit: exit 1, the finished parts kept and readable",
-    "analyze --write on a full disk: exit 1, the results file unchanged",
-    "a finished file and a longer axis: refused, file unchanged",
-    "--sweep.KEY with an unknown key names the nearest one",
-}
+KNOWN_OPEN = set()
 
 
 def case(group, title):

@@ -42,6 +42,12 @@ struct AllocationInput {
   std::vector<std::string> agent_labels, partner_labels;  // of the input rows; empty = none
   ValueReading reading;                                   // counts or shares
   std::vector<std::string> matching;  // how the files were matched, one phrase each, for the report
+  // Why the allocation is known not to be the stationary one (e.g. "run-000003
+  // had not settled: ..."), with the advice; empty when nothing says so. The
+  // report says it first, and flags the temperature as fitted to a
+  // non-stationary allocation (JSON: temperature.stationary = false and
+  // temperature.not_stationary = this text, both only then).
+  std::string not_stationary;
 };
 
 // How concentrated the weight is, on the analysed matrix (shares p, k cells
@@ -91,6 +97,7 @@ struct AllocationReport {
   BinaryMatrix links;  // `values` binarised by the report's rule
   std::vector<std::string> agent_labels, partner_labels;  // of the input; empty = none
   std::vector<std::string> matching;                      // from the input
+  std::string not_stationary;                             // from the input
   TemperatureResult temperature;
   ExactResult exact;  // solved once, when gains are known (else status infeasible)
   Comparison versus_exact, versus_entropic;

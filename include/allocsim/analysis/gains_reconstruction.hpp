@@ -17,6 +17,7 @@
 #pragma once
 
 #include <iosfwd>
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -41,11 +42,27 @@ struct GainsReconstructionOptions {
   std::optional<LatentAssociationOptions> latent;  // absent: no latent model
 };
 
+// How well a reconstruction recovers known gains (a simulation, where the
+// truth is Phi / T with T the choice temperature): for the latent
+// association and for the features' sum_k beta_k F_k, the Pearson
+// correlation of their residuals after row and column constants with that
+// of the truth over the allowed cells (1 = the shape of Phi recovered), and
+// the least-squares slope of the reconstructed residual on the true one
+// (1 = the scale recovered too, i.e. epsilon = T). NaN when that model was
+// not fitted or a residual is zero.
+struct GainsRecovery {
+  double latent_correlation = std::numeric_limits<double>::quiet_NaN();
+  double latent_slope = std::numeric_limits<double>::quiet_NaN();
+  double features_correlation = std::numeric_limits<double>::quiet_NaN();
+  double features_slope = std::numeric_limits<double>::quiet_NaN();
+};
+
 struct GainsReconstructionReport {
   std::optional<GainsFitResult> features;         // when features were given
   std::optional<LatentAssociationResult> latent;  // when a latent rank was asked for
   std::vector<ModelFitSummary> models;            // independence, features, latent ranks, saturated
   std::vector<std::string> row_labels, column_labels;  // of the kept rows and columns
+  std::optional<GainsRecovery> recovery;  // set by the caller when the true gains are known
 };
 
 // Throws InputError for unusable features (gains_fit.hpp) or latent rank.
@@ -65,5 +82,15 @@ void print_gains_reconstruction(std::ostream& out, const GainsReconstructionRepo
 // residuals over the allowed cells of `observed`. NaN when either is additive.
 double correlation_after_row_column_effects(const ObservedAllocation& observed, const Matrix& a,
                                             const Matrix& b);
+
+// The reconstructed gains / epsilon of the features fit, sum_k beta_k F_k,
+// on the kept rows and columns (`input` as given to reconstruct_gains).
+Matrix fitted_feature_gains(const ObservedAllocation& observed,
+                            const GainsReconstructionInput& input, const GainsFitResult& fit);
+
+// `truth` = Phi / T in the shape of the kept rows and columns of `observed`.
+GainsRecovery gains_recovery(const ObservedAllocation& observed,
+                             const GainsReconstructionInput& input,
+                             const GainsReconstructionReport& report, const Matrix& truth);
 
 }  // namespace allocsim

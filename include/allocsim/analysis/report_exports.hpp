@@ -27,4 +27,8 @@ namespace allocsim {
 
 std::vector<std::string> export_report(const AllocationReport& report, const std::string& folder);
 
+// Every file name export_report may write (to check, before any analysis,
+// that no input would be overwritten).
+const std::vector<std::string>& report_export_names();
+
 }  // namespace allocsim

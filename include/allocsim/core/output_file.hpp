@@ -43,6 +43,15 @@ bool same_file(const std::string& a, const std::string& b);
 void require_distinct(const std::string& output, const std::string& output_label,
                       const std::vector<std::pair<std::string, std::string>>& others);
 
+// Remembers `path` (a regular file) as an input read by this process.
+// Thread-safe.
+void remember_input(const std::string& path);
+
+// Throws InputError(label) when `output` is the same file as an input
+// remembered by remember_input, e.g. "res.h5: is also an input of this
+// command (res.h5); it would be overwritten: choose another name".
+void require_not_an_input(const std::string& output, const std::string& label);
+
 // Removes "<path>.tmp-<pid>" beside `path` whose process no longer runs;
 // returns how many were removed.
 int remove_orphan_temporaries(const std::string& path);
@@ -54,6 +63,23 @@ int remove_orphan_temporaries_in(const std::string& folder);
 // EDQUOT, EIO, EROFS, EFBIG), "No space left on device" when the folder of
 // `path` has less than 1 MB free, otherwise `detail`.
 std::string write_failure_cause(const std::string& path, const std::string& detail, int error);
+
+// A folder made for outputs: created with its missing parents; when the
+// object is destroyed before keep() (a failed write), the folders it
+// created are removed again if they are still empty, so a failure leaves
+// nothing behind. Throws InputError(label) when the folder cannot be made
+// or a file has its name.
+class NewFolder {
+ public:
+  NewFolder(const std::string& folder, const std::string& label);
+  ~NewFolder();
+  NewFolder(const NewFolder&) = delete;
+  NewFolder& operator=(const NewFolder&) = delete;
+  void keep() { created_.clear(); }
+
+ private:
+  std::vector<std::string> created_;  // innermost first
+};
 
 // An advisory lock (flock) on "<path>.lock", held while the object lives;
 // the lock file holds the holder's pid and start time and is removed on

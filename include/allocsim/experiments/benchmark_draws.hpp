@@ -51,9 +51,11 @@ struct WholeRange {
 struct ShapeLaw {
   WholeRange agents{20, 20}, partners{15, 15};
   std::string text;
+  std::string where = "--shape";  // the option it came from, for messages
 };
 
-// Each range must lie in [2, 100000].
+// Each end is a whole number from 2 to 1e9; whether the largest case fits
+// in memory is checked by BenchmarkOptions::validate (with the estimate).
 ShapeLaw parse_shape_law(const std::string& text, const std::string& where);
 
 struct MarginalLaw {

@@ -140,6 +140,20 @@ struct Point {
   double y = 0;
   double low = kNoValue;  // interval, NaN when none; high may be +inf (drawn to the top edge)
   double high = kNoValue;
+  int level = 0;  // index into the figure's Factor::levels (0 when there is no factor)
+};
+
+// A factor (a swept key) that splits the runs of a figure against
+// temperature: one series (colour and marker) per level, or with `panels`
+// one panel per level on shared axes. No levels: every point is one series.
+// Up to 8 levels get their own style (Okabe-Ito colours, distinct markers);
+// more repeat them.
+struct Factor {
+  std::string key;                  // plain text, e.g. "scenario.capacities"; the legend title
+  std::vector<std::string> levels;  // plain text, legend order, e.g. "uniform", "0.25"
+  bool panels = false;
+
+  bool split() const { return levels.size() > 1; }
 };
 
 // Null-model ensemble at one x: its mean and 95% band (e.g. 2.5% and 97.5%
@@ -149,21 +163,65 @@ struct NullBandPoint {
   double mean = 0;
   double low = 0;
   double high = 0;
+  int level = 0;  // as Point::level
 };
 
 // A structure metric (NODF, WNODF) of the emergent allocations against the
 // choice temperature: one point per run, a line through the mean at each
-// temperature, the null mean (dashed) and its 95% band (shaded).
+// temperature, the null mean (dashed) and its 95% band (shaded). With a
+// factor drawn as series, each level's null mean is a dashed line in the
+// level's colour and the bands are left out (they would cover each other);
+// in panels each panel has its level's band.
 struct MetricAgainstTemperature {
   std::string title;
   std::string metric_name;               // plain text, e.g. "NODF"; the y label
   std::vector<Point> runs;               // x = choice temperature T (> 0), y = metric
   std::vector<NullBandPoint> null_band;  // may be empty; several at one x are averaged
   std::string null_name = "null model";  // e.g. "fixed-marginal null"
+  Factor factor = {};
 };
 std::string draw_metric_against_temperature(const MetricAgainstTemperature& figure,
                                             const std::string& stem,
                                             const FigureOptions& options = {});
+
+// The z-score of a structure metric against its null ensemble, per run,
+// against the choice temperature: points, a line through the mean at each
+// temperature, and the shaded band |z| <= threshold (as likely under the
+// null). Above the band: more than the null; below: less.
+struct ZScoresAgainstTemperature {
+  std::string title;
+  std::string metric_name;  // plain text, e.g. "NODF"
+  std::string null_name;    // plain text, e.g. "curveball null model"
+  std::vector<Point> runs;  // x = T, y = z-score
+  double threshold = 2;     // > 0
+  Factor factor = {};
+};
+std::string draw_z_scores_against_temperature(const ZScoresAgainstTemperature& figure,
+                                              const std::string& stem,
+                                              const FigureOptions& options = {});
+
+// The answer of `allocsim trend` per level: the slope of a metric against
+// log10 x with its interval (a horizontal bar per level, the level's colour
+// and marker; a vertical line at 0), with Spearman's rho, its p-value and
+// the runs above and below the null written beside each bar.
+struct TrendRow {
+  int level = 0;  // index into factor.levels (0 without a factor)
+  long runs = 0;
+  double rho = kNoValue, p_value = kNoValue;
+  double slope = kNoValue, low = kNoValue, high = kNoValue;  // NaN: not measurable
+  long with_z = 0, above = 0, below = 0;                     // with_z = 0: no z counts
+};
+struct TrendSummary {
+  std::string title;
+  std::string metric_name;  // plain text, e.g. "nodf_z_score"
+  std::string x_name;       // plain text, e.g. "dynamics.temperature"
+  double confidence = 0.95;
+  double z_threshold = 2;      // |z| above it counted as above / below the null
+  std::vector<TrendRow> rows;  // top to bottom
+  Factor factor = {};          // panels are not used: one row per level
+};
+std::string draw_trend_summary(const TrendSummary& figure, const std::string& stem,
+                               const FigureOptions& options = {});
 
 // Estimated transport temperature against the true choice temperature, log
 // axes (linear when the values span less than a factor 10), with interval
@@ -174,18 +232,22 @@ struct TemperatureRecovery {
   std::string title;
   std::vector<Point> runs;  // x = true T, y = estimated epsilon, low/high = its interval
   std::string interval_name = "95% interval";
+  Factor factor = {};  // series: the levels' points are shifted slightly apart along x
 };
 std::string draw_temperature_recovery(const TemperatureRecovery& figure, const std::string& stem,
                                       const FigureOptions& options = {});
 
 // Distance from the emergent allocation to the entropic coupling (at the
 // estimated epsilon) and to the exact coupling, against the temperature.
-// The y axis is logarithmic when every distance is positive.
+// The y axis is logarithmic when every distance is positive. With a factor
+// drawn as series: two panels (to the entropic, to the exact coupling), one
+// series per level in each.
 struct DistanceAgainstTemperature {
   std::string title;
   std::string distance_name = "KL divergence";  // plain text; the y label
   std::vector<Point> to_entropic;               // x = T
   std::vector<Point> to_exact;                  // x = T
+  Factor factor = {};
 };
 std::string draw_distance_against_temperature(const DistanceAgainstTemperature& figure,
                                               const std::string& stem,

@@ -126,6 +126,59 @@ inline constexpr char kPUpper[] = "p_upper";
 inline constexpr char kPTwoSided[] = "p_two_sided";
 inline constexpr char kNullSamples[] = "null_samples";
 
+// Gains reconstruction (analyze --save with --features, --row-traits or
+// --latent-rank; sweeps with analysis.latent_rank or analysis.trait_features):
+//   analysis/reconstruction/row_labels, column_labels   texts: the analysed rows
+//                               and columns, in input order (scores follow them)
+//   analysis/reconstruction/models/  name (texts), log_likelihood, deviance,
+//                               parameters, degrees_of_freedom, aic, bic: one row per model
+//   analysis/reconstruction/latent/  row_scores (rows x K), column_scores
+//                               (columns x K), strengths (K), strength_errors (K),
+//                               coupling (input shape); attributes rank, rank_chosen
+//                               ("true" | "false"), latent_status
+//   analysis/reconstruction/features/  names (texts), weights, standard_errors,
+//                               interval_low, interval_high, coupling (input shape);
+//                               attributes features_status, confidence
+inline constexpr char kReconstruction[] = "analysis/reconstruction";
+inline constexpr char kReconstructionRowLabels[] = "analysis/reconstruction/row_labels";
+inline constexpr char kReconstructionColumnLabels[] = "analysis/reconstruction/column_labels";
+inline constexpr char kModels[] = "analysis/reconstruction/models";
+inline constexpr char kModelNames[] = "analysis/reconstruction/models/name";
+inline constexpr char kModelLogLikelihood[] = "analysis/reconstruction/models/log_likelihood";
+inline constexpr char kModelDeviance[] = "analysis/reconstruction/models/deviance";
+inline constexpr char kModelParameters[] = "analysis/reconstruction/models/parameters";
+inline constexpr char kModelDegreesOfFreedom[] =
+    "analysis/reconstruction/models/degrees_of_freedom";
+inline constexpr char kModelAic[] = "analysis/reconstruction/models/aic";
+inline constexpr char kModelBic[] = "analysis/reconstruction/models/bic";
+inline constexpr char kLatent[] = "analysis/reconstruction/latent";
+inline constexpr char kLatentRowScores[] = "analysis/reconstruction/latent/row_scores";
+inline constexpr char kLatentColumnScores[] = "analysis/reconstruction/latent/column_scores";
+inline constexpr char kLatentStrengths[] = "analysis/reconstruction/latent/strengths";
+inline constexpr char kLatentStrengthErrors[] = "analysis/reconstruction/latent/strength_errors";
+inline constexpr char kLatentCoupling[] = "analysis/reconstruction/latent/coupling";
+inline constexpr char kLatentRankChosen[] = "rank_chosen";
+inline constexpr char kLatentStatus[] = "latent_status";
+inline constexpr char kFeatures[] = "analysis/reconstruction/features";
+inline constexpr char kFeatureNames[] = "analysis/reconstruction/features/names";
+inline constexpr char kFeatureWeights[] = "analysis/reconstruction/features/weights";
+inline constexpr char kFeatureErrors[] = "analysis/reconstruction/features/standard_errors";
+inline constexpr char kFeatureIntervalLow[] = "analysis/reconstruction/features/interval_low";
+inline constexpr char kFeatureIntervalHigh[] = "analysis/reconstruction/features/interval_high";
+inline constexpr char kFeatureCoupling[] = "analysis/reconstruction/features/coupling";
+inline constexpr char kFeaturesStatus[] = "features_status";
+// Attributes of the analysis group (so /summary columns of a sweep): the
+// latent rank fitted (chosen by BIC with auto), whether that fit converged, and how well the
+// reconstruction recovers the simulated gains / T after row and column
+// effects (analysis/gains_reconstruction.hpp, GainsRecovery).
+inline constexpr char kLatentRank[] = "latent_rank";
+inline constexpr char kLatentConverged[] = "latent_converged";  // 1 or 0
+inline constexpr char kLatentStrength1[] = "latent_strength_1";
+inline constexpr char kLatentGainsCorrelation[] = "latent_gains_correlation";
+inline constexpr char kLatentGainsSlope[] = "latent_gains_slope";
+inline constexpr char kFeatureGainsCorrelation[] = "feature_gains_correlation";
+inline constexpr char kFeatureGainsSlope[] = "feature_gains_slope";
+
 // Summary columns besides the experiment keys and the analysis attributes.
 inline constexpr char kRunColumn[] = "run";
 

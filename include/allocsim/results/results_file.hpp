@@ -3,6 +3,8 @@
 // the target ("<file>.tmp-<pid>") and is renamed onto the target by commit().
 // A run killed at any point (even by SIGKILL) leaves no file under the final
 // name; destroying the object without commit() removes the temporary file.
+// A write that fails (a full disk, an I/O error) is a WriteError naming the
+// target and the cause; the file is then abandoned, never flushed again.
 //
 // Root attributes: format, format_version, tool_version, created_utc (ISO
 // 8601), experiment (the experiment as INI text). Runs go under /runs/<run>
@@ -16,6 +18,7 @@
 #include <vector>
 
 #include "allocsim/analysis/allocation_report.hpp"
+#include "allocsim/analysis/gains_reconstruction.hpp"
 #include "allocsim/core/matrix.hpp"
 #include "allocsim/core/problem.hpp"
 #include "allocsim/sim/engine.hpp"
@@ -55,6 +58,14 @@ class RunWriter {
   // (these become /summary columns in a sweep), the exact and entropic
   // couplings and the display order as datasets.
   void write_report(const AllocationReport& report);
+  // <run>/analysis/reconstruction (layout.hpp): labels, the model table, the
+  // latent scores and strengths, the feature weights and the fitted
+  // couplings (input shape of `observed`), and as attributes of the analysis
+  // group the latent rank, sigma_1 and, when the report carries them, the
+  // recovery measures (/summary columns of a sweep). Call after
+  // write_report, which replaces the analysis group.
+  void write_gains_reconstruction(const GainsReconstructionReport& report,
+                                  const ObservedAllocation& observed);
   // An empty <run>/analysis group (a run not analysed yet); replaces any.
   void clear_analysis();
   // Creates <run>/allocation with empty, extendable snapshots and round_end;
@@ -79,16 +90,21 @@ class AllocationRecorder : public SnapshotSink {
   AllocationRecorder(AllocationRecorder&&) noexcept;
 
   void add_snapshot(const Matrix& counts, long round_end, const Vector* prices) override;
-  // Writes allocation/total.
+  // Writes allocation/total and closes the streamed datasets (a write that
+  // fails, e.g. on a full disk, is a WriteError here).
   void finish(const RunResult& result);
 
  private:
   std::unique_ptr<State> state_;
 };
 
+// The target follows the rules of core/output_file.hpp: a symlink is
+// followed (its target is written, the link stays); anything but a regular
+// file or nothing is refused (InputError).
 class ResultsFile {
  public:
-  // Throws InputError naming `path` when its folder cannot be written.
+  // Throws InputError naming `path` when its folder does not exist or cannot
+  // be written, WriteError when the disk is full.
   ResultsFile(std::string path, const std::string& experiment_text,
               const std::string& tool_version);
   ~ResultsFile();
@@ -110,13 +126,14 @@ class ResultsFile {
 
  private:
   struct File;
-  std::string path_, temporary_;
+  std::string path_, target_, temporary_;
   std::unique_ptr<File> file_;
   bool committed_ = false;
 };
 
 // Opens an existing results file for adding analyses: the changes go to a
-// copy beside it that replaces the file only on commit().
+// copy beside it that replaces the file only on commit(). A copy or write
+// that fails is a WriteError (the file is left as it was).
 class ResultsUpdate {
  public:
   explicit ResultsUpdate(std::string path);
@@ -129,7 +146,7 @@ class ResultsUpdate {
 
  private:
   struct File;
-  std::string path_, temporary_;
+  std::string path_, target_, temporary_;
   std::unique_ptr<File> file_;
   bool committed_ = false;
 };
@@ -141,7 +158,9 @@ std::string run_name(long index);
 std::string utc_timestamp();
 
 // Turns off the HDF5 library's own diagnostics on stderr (errors reach the
-// user as one message of ours instead). Idempotent.
+// user as one message of ours instead) and its end-of-process cleanup (a
+// file abandoned after a failed write is never flushed). Idempotent; the
+// command line calls it before anything else.
 void silence_hdf5_diagnostics();
 
 }  // namespace allocsim

@@ -39,6 +39,7 @@
 #include <string>
 #include <vector>
 
+#include "allocsim/core/matrix.hpp"
 #include "allocsim/core/problem.hpp"
 
 namespace allocsim {
@@ -84,6 +85,21 @@ struct ScenarioOptions {
   // Throws InputError naming the wrong key (scenario.<field>).
   void validate() const;
 };
+
+// The traits the gains of run `run` are made from (the same draws as
+// make_scenario): rank-product one trait "rank" (a_i, b_j); trait-distance
+// one trait "trait" (x_i, y_j; distance = true); features the k latent
+// features "feature 1", ... (U, V). Gains = gains_scale * (sum_c rows(i, c)
+// columns(j, c), divided by sqrt(k) for features), or
+// -gains_scale |x_i - y_j|^p with distance. Empty (no columns) for random
+// and file gains, which come from no traits.
+struct ScenarioTraits {
+  Matrix rows;                     // agents x traits
+  Matrix columns;                  // partners x traits
+  std::vector<std::string> names;  // one per trait
+  bool distance = false;           // gains from the distance of the traits, not their product
+};
+ScenarioTraits scenario_traits(const ScenarioOptions& options, std::uint64_t run = 0);
 
 // Builds the problem of run `run`. Budgets and capacities total 1 each.
 // Throws InputError for unreadable or mismatched files and for an agent or
