@@ -13,6 +13,7 @@ packages=(
   python3 python3-numpy python3-scipy python3-h5py python3-statsmodels
   python3-dev pybind11-dev python3-pytest python3-pandas  # the Python module and its tests
   clang libclang-rt-dev libomp-dev  # libFuzzer targets (tests/fuzz/run_fuzzers.sh)
+  clang-format  # the formatting check of .ci/run (tools/check_format.sh)
 )
 
 missing=()

@@ -15,8 +15,8 @@ namespace {
 long read_whole(const std::string& item, const std::string& where, const std::string& text) {
   const double value = finite_number_in(item, where, text);
   if (value != std::floor(value) || value < 2 || value > 1e9) {
-    throw InputError(where, "'" + trim_blanks(item) + "' in '" + text +
-                                "' is not a whole number in [2, 1e9]");
+    throw InputError(
+        where, "'" + trim_blanks(item) + "' in '" + text + "' is not a whole number in [2, 1e9]");
   }
   return static_cast<long>(value);
 }
