@@ -1,4 +1,5 @@
 #include "allocsim/experiments/keys.hpp"
+#include "allocsim/core/edit_distance.hpp"
 
 #include <algorithm>
 #include <boost/program_options.hpp>
@@ -134,20 +135,6 @@ std::vector<ExperimentKey> build_keys() {
                   "trait-matching features; needs analysis.enabled"),
       make_key("output.file", KeyKind::path, "results.h5", "results file (HDF5) to write"),
   };
-}
-
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> previous(b.size() + 1), current(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) previous[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    current[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t substitution = previous[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
-      current[j] = std::min({previous[j] + 1, current[j - 1] + 1, substitution});
-    }
-    std::swap(previous, current);
-  }
-  return previous[b.size()];
 }
 
 // "exp.ini:12: dynamics.rule", or "--dynamics.rule" for the command line.

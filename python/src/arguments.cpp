@@ -5,6 +5,7 @@
 #include <map>
 #include <sstream>
 
+#include "allocsim/core/edit_distance.hpp"
 #include "allocsim/core/error.hpp"
 
 namespace allocsim::python {
@@ -15,22 +16,6 @@ using DoubleArray = py::array_t<double, py::array::c_style | py::array::forcecas
 std::map<std::string, std::vector<std::string>>& option_names() {
   static auto* names = new std::map<std::string, std::vector<std::string>>();
   return *names;
-}
-
-// Levenshtein distance, for "did you mean".
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t above = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0 : 1)});
-      diagonal = above;
-    }
-  }
-  return row[b.size()];
 }
 
 DoubleArray numeric_array(const py::handle& value, const std::string& name) {
