@@ -1,12 +1,14 @@
 """End-to-end checks of `allocsim analyze` on CSV files: a good run (text and
 JSON), and bad input that must give one clear line on stderr naming the
 file and what is wrong, with a non-zero exit."""
-import argparse
 import json
 import os
 import subprocess
 import sys
 import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 GAINS = "0.9,0.1,0.3\n0.2,0.8,0.4\n0.5,0.3,0.7\n"
 COUNTS = "50,10,12\n8,40,15\n11,9,45\n"
@@ -52,9 +54,7 @@ def write(folder, files):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     a = parser.parse_args()
     failures = 0
     with tempfile.TemporaryDirectory() as folder:

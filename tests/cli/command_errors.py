@@ -5,12 +5,14 @@ each case must end with exit code 1 or 2 (never a signal), exactly one line on
 stderr that names the file (and line) or the key and contains the expected
 words, and no results file (nor a temporary one) left behind. A good run of
 each command shows that the harness can tell success from failure."""
-import argparse
 import json
 import os
 import subprocess
 import sys
 import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 GOOD_INI = """[scenario]
 agents = 4
@@ -199,9 +201,7 @@ def check_solve_limit(binary, failures):
 
 
 def main():
-    parser = argparse.ArgumentParser(description=__doc__)
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser(__doc__)
     args = parser.parse_args()
     args.allocsim = os.path.abspath(args.allocsim)
     failures = []

@@ -1,7 +1,6 @@
 """End-to-end check of `allocsim demo`: in an empty folder it succeeds, every
 file it announces exists (figures are valid PNGs, the results file opens
 with h5py), and a second demo into the same folder is refused."""
-import argparse
 import os
 import subprocess
 import sys
@@ -9,13 +8,14 @@ import tempfile
 
 import h5py
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
+
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)
     failures = []

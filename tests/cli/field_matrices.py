@@ -4,7 +4,6 @@ sets are refused naming them), counts and shares told apart (the same
 matrix read as shares on N units gives the counts' epsilon and interval),
 gains optional or uninformative (exit 0, status said), labelled exports,
 and bad input refused with one line naming the file."""
-import argparse
 import csv
 import json
 import os
@@ -13,6 +12,9 @@ import sys
 import tempfile
 
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 RELATIVE = 1e-8  # counts vs shares: the shares file holds c/N rounded to doubles
 
@@ -53,9 +55,7 @@ def one_line_error(result, code, words):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     parser.add_argument("--seed", type=int, default=7)
     a = parser.parse_args()
     binary = a.allocsim

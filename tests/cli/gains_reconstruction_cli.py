@@ -11,7 +11,6 @@ Checks, end to end:
     label, --latent-rank at the saturated rank, --latent-rank two, only one
     of the trait tables, two collinear features.
 """
-import argparse
 import json
 import os
 import subprocess
@@ -19,6 +18,9 @@ import sys
 import tempfile
 
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 
 def write(path, matrix, row_labels=None, column_labels=None, integer=False):
@@ -35,9 +37,7 @@ def run(allocsim, args):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     a = parser.parse_args()
     rng = np.random.default_rng(17)
     n, m = 7, 8

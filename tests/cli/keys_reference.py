@@ -1,16 +1,16 @@
 """The key reference in docs/experiment-keys.md is the program's own
 `allocsim run --list-keys`, so the documentation cannot fall behind the key
 table."""
-import argparse
 import os
 import subprocess
 import sys
 
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
+
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     page = os.path.join(os.path.dirname(os.path.abspath(args.data)), "..", "docs", "experiment-keys.md")
     text = open(page).read()

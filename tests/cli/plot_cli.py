@@ -11,7 +11,6 @@ per law (picked and said on stdout when it is the only other swept key),
 `--panels` one panel per law, and a key that is not swept is refused; the scripts of a fixed
 file are the same at every generation; a hostile name runs nothing; bad
 input gives one line on stderr and a non-zero exit."""
-import argparse
 import os
 import shutil
 import struct
@@ -21,6 +20,9 @@ import tempfile
 
 import h5py
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 HOSTILE_RUN = "run'; system 'touch PWNED'; '`touch PWNED`"
 SWEEP_FIGURES = ["nodf-vs-temperature", "wnodf-vs-temperature", "epsilon-vs-temperature",
@@ -274,9 +276,7 @@ def test_bad_input(binary, folder, base):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)
     with tempfile.TemporaryDirectory() as folder:

@@ -19,7 +19,6 @@ Checks, end to end:
     run-000000-latent-scores.png; a latent rank of 1 draws it too;
   * reconstruction options with a results file are refused (exit 2).
 """
-import argparse
 import json
 import os
 import subprocess
@@ -28,6 +27,9 @@ import tempfile
 
 import h5py
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 EXPERIMENT = """
 [scenario]
@@ -150,9 +152,7 @@ def check_save_and_plot(allocsim, data, folder, failures):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     a = parser.parse_args()
     failures = []
     with tempfile.TemporaryDirectory() as folder:

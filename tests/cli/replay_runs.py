@@ -19,7 +19,6 @@ Prints one summary line; exits non-zero on any failure.
 Usage: replay_runs.py --allocsim PATH --data DIR
 """
 
-import argparse
 import json
 import os
 import subprocess
@@ -28,6 +27,9 @@ import tempfile
 
 import h5py
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 FAILURES = []
 RUN = "run-000003"
@@ -76,9 +78,7 @@ def run(command, cwd):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     exe, sweep = args.allocsim, os.path.join(args.data, "replay_sweep.ini")
     with tempfile.TemporaryDirectory() as folder:

@@ -2,7 +2,6 @@
 and over MPI ranks, resume after SIGKILL at random moments and after Ctrl-C,
 the summary table, and bad experiment files. The results are read with h5py
 (the outside reference for the file format)."""
-import argparse
 import os
 import random
 import shutil
@@ -14,6 +13,9 @@ import time
 
 import h5py
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 EXPERIMENT = """# a small temperature sweep
 [scenario]
@@ -193,9 +195,7 @@ def check_bad_files(binary, folder):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     parser.add_argument("--seed", type=int, default=int(time.time()))
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)

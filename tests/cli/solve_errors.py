@@ -1,12 +1,14 @@
 """End-to-end checks of `allocsim solve`: good runs, and bad input that must
 give one clear line on stderr naming the file (and line), a non-zero exit,
 and no output file."""
-import argparse
 import json
 import os
 import subprocess
 import sys
 import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 GOOD_GAINS = "1,2,3\n4,5,6\n"
 GOOD_BUDGETS = "0.5\n0.5\n"
@@ -85,9 +87,7 @@ def check_good_runs(binary, failures):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     args.allocsim = os.path.abspath(args.allocsim)
     failures = []

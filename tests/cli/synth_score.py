@@ -7,7 +7,6 @@ and scored; the scores, per group and per quintile band, are recomputed here
 with numpy (np.quantile, linear interpolation) and scipy.stats.spearmanr.
 Declined and missing answers, the refusals of bad answers and of bad synth
 options are checked by their messages."""
-import argparse
 import csv
 import io
 import json
@@ -20,6 +19,9 @@ import tempfile
 import h5py
 import numpy as np
 from scipy.stats import spearmanr
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 failures = []
 TOOLS = os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "..", "tools")
@@ -202,9 +204,7 @@ def check_synth_refusals(binary, folder, tmp):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)
     with tempfile.TemporaryDirectory() as tmp:

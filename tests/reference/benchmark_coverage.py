@@ -16,7 +16,6 @@ report the upward bias that the rule comparison of temperature_test measured
 looks hotter): a positive median relative error, with more positive than
 negative errors by a sign test (scipy.stats.binomtest, p < 0.01).
 """
-import argparse
 import csv
 import io
 import json
@@ -26,6 +25,9 @@ import sys
 import tempfile
 
 from scipy import stats
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 COVERAGE_RANGE = (0.92, 0.98)
 MEDIAN_LIMIT = 0.02
@@ -63,9 +65,7 @@ def scored_set(binary, tmp, name, *options):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)
     with tempfile.TemporaryDirectory() as tmp:

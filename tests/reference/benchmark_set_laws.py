@@ -18,7 +18,6 @@ On a 500-case set (three families, epsilon loguniform(0.01, 1)):
   * agents and partners are uniform on 10..60 and 10..80 (chi-square on
     five bins, p > 0.01) and stay in range.
 """
-import argparse
 import csv
 import itertools
 import os
@@ -28,6 +27,9 @@ import tempfile
 
 import numpy as np
 from scipy import stats
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 SEED = 11
 P_FLOOR = 0.01
@@ -51,9 +53,7 @@ def synth(binary, folder, *options):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     binary = os.path.abspath(args.allocsim)
     with tempfile.TemporaryDirectory() as tmp:

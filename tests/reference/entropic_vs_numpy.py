@@ -5,7 +5,6 @@ scipy.special.logsumexp (the textbook updates f = eps log r - eps LSE((G+g)/eps)
 g = eps log c - eps LSE((G+f)/eps), with epsilon-scaling), run to a marginal
 violation of 1e-13, over epsilon from 1e-3 to 10 times the gain range.
 """
-import argparse
 import json
 import os
 import subprocess
@@ -14,6 +13,9 @@ import tempfile
 
 import numpy as np
 from scipy.special import logsumexp
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 COUPLING_AGREEMENT = 1e-7   # max |P - P_ref| for unit mass
 GAIN_AGREEMENT = 1e-8       # relative difference in total gain
@@ -43,9 +45,7 @@ def write_vector(path, values):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     rng = np.random.default_rng(7)
     worst_coupling = worst_gain = 0.0

@@ -18,7 +18,6 @@ the report must say it left out (by label). A perfectly nested 3x3 matrix
 with one empty row must score NODF 100 (the paper's Fig. 1 logic: every
 pair with decreasing fill nests fully).
 """
-import argparse
 import json
 import os
 import subprocess
@@ -26,6 +25,9 @@ import sys
 import tempfile
 
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 TOLERANCE = 1e-9  # relative; both sides compute in double precision
 
@@ -125,9 +127,7 @@ def check_nested_with_empty_row(binary, folder):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     parser.add_argument("--seed", type=int, default=20261202)
     a = parser.parse_args()
     print(f"seed {a.seed}")

@@ -21,7 +21,6 @@ National Election Studies 1996 subset shipped with statsmodels
 public domain), with the trait "position" (the scale's level, PID + 1 for
 the columns) as a distance feature and a random feature beside it.
 """
-import argparse
 import json
 import os
 import subprocess
@@ -31,6 +30,9 @@ import tempfile
 import numpy as np
 import statsmodels.api as sm
 from scipy.stats import chi2
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 BETA_TOLERANCE = 1e-7
 SE_TOLERANCE = 1e-6
@@ -182,9 +184,7 @@ def collinear_refused(folder, probe):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     parser.add_argument("--probe", required=True)
     args = parser.parse_args()
     ok = True

@@ -17,7 +17,6 @@ any normalisation. Checks:
     rank 2 by BIC and each dimension's scores correlate with the true ones
     (normalised the same way) above 0.99.
 """
-import argparse
 import json
 import os
 import subprocess
@@ -27,6 +26,9 @@ import tempfile
 import numpy as np
 from scipy.optimize import minimize
 from scipy.special import gammaln
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 LOGLIK_TOLERANCE = 1e-6
 
@@ -143,9 +145,7 @@ def check_rank_two(probe, folder):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     parser.add_argument("--probe", required=True)
     args = parser.parse_args()
     ok = True

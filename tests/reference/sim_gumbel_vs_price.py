@@ -23,7 +23,6 @@ probabilities at 1.1 T.
 Usage: sim_gumbel_vs_price.py --allocsim PATH --data DIR
 """
 
-import argparse
 import os
 import subprocess
 import sys
@@ -32,6 +31,9 @@ import tempfile
 import h5py
 import numpy as np
 from scipy import stats
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 ALPHA = 1e-3
 TEMPERATURE = 0.15
@@ -76,9 +78,7 @@ def pooled_homogeneity(a, b):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as folder:
         gumbel, gains = run(args.allocsim, folder, "gumbel")

@@ -23,7 +23,6 @@ Prints one summary line; exits non-zero on any failure.
 Usage: sim_results_file.py --allocsim PATH --data DIR
 """
 
-import argparse
 import json
 import os
 import signal
@@ -34,6 +33,9 @@ import time
 
 import h5py
 import numpy as np
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 FAILURES = []
 
@@ -171,9 +173,7 @@ def check_bad_inputs(allocsim, folder, config):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     allocsim = os.path.abspath(args.allocsim)
     config = os.path.join(os.path.abspath(args.data), "sim_small.ini")

@@ -12,7 +12,6 @@ Agresti, Categorical Data Analysis ch. 9). Checks, for several seeded cases:
     scipy.stats.chi2.ppf(0.95, 1), to 1e-3 relative.
 Structural zeros (access 0) are left out of the GLM.
 """
-import argparse
 import json
 import os
 import subprocess
@@ -22,6 +21,9 @@ import tempfile
 import numpy as np
 import statsmodels.api as sm
 from scipy.stats import chi2
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 EPS_TOLERANCE = 1e-6
 SE_TOLERANCE = 1e-4
@@ -136,9 +138,7 @@ def compare(name, gains, counts, allowed, args):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     a = parser.parse_args()
     ok = True
     with tempfile.TemporaryDirectory() as folder:

@@ -17,7 +17,6 @@ Prints one summary line; exits non-zero on any failure.
 Usage: trend_vs_scipy.py --allocsim PATH --data DIR
 """
 
-import argparse
 import csv
 import json
 import os
@@ -29,6 +28,9 @@ import h5py
 import numpy as np
 import scipy.stats
 import statsmodels.api as sm
+
+sys.path.insert(0, os.path.join(os.path.dirname(os.path.abspath(__file__)), "..", "support"))
+from test_cli import test_parser  # noqa: E402
 
 FAILURES = []
 PERMUTATIONS = 9999
@@ -55,9 +57,7 @@ def replicate_interval_half_width(x, y):
 
 
 def main():
-    parser = argparse.ArgumentParser()
-    parser.add_argument("--allocsim", required=True)
-    parser.add_argument("--data", required=True)
+    parser = test_parser()
     args = parser.parse_args()
     with tempfile.TemporaryDirectory() as folder:
         results = os.path.join(folder, "trend.h5")
