@@ -14,8 +14,10 @@
 #include "allocsim/sim/engine.hpp"
 #include "allocsim/sim/rules.hpp"
 #include "allocsim/sim/scenario.hpp"
+#include "test_problems.hpp"
 
 using namespace allocsim;
+using namespace allocsim::testing;
 
 namespace {
 
@@ -24,15 +26,6 @@ constexpr double kSolverTolerance = 1e-12;   // marginal violation asked of Sink
 constexpr double kFixedPointTolerance = 1e-12;
 constexpr long kMaxMeanFieldRounds = 200000;
 constexpr long kUnits = 1000;
-
-Matrix entropic_coupling(const TransportProblem& problem, double epsilon) {
-  EntropicOptions options;
-  options.epsilon = epsilon;
-  options.tolerance = kSolverTolerance;
-  const EntropicResult result = solve_entropic(problem, options);
-  REQUIRE(result.converged());
-  return result.coupling;
-}
 
 // Plays mean-field rounds until the column sums meet the capacities;
 // returns the last round's flows as a unit-mass coupling.
@@ -96,7 +89,7 @@ TEST_CASE("mean-field price rule with step 1 converges to the entropic coupling 
       options.temperature = temperature;
       long rounds = 0;
       const Matrix mean_field = mean_field_fixed_point(problem, options, &rounds);
-      const Matrix sinkhorn = entropic_coupling(problem, temperature);
+      const Matrix sinkhorn = entropic_coupling(problem, temperature, kSolverTolerance);
       const double gap = (mean_field - sinkhorn).cwiseAbs().maxCoeff();
       INFO("gains " << to_string(c.gains) << ", access " << to_string(c.access) << ", T "
                     << temperature << ": " << rounds << " rounds, max gap " << gap);
@@ -112,7 +105,8 @@ TEST_CASE("mean-field price rule with a smaller step reaches the same fixed poin
   options.temperature = 0.1;
   options.price_step = 0.5;
   const Matrix mean_field = mean_field_fixed_point(problem, options);
-  CHECK((mean_field - entropic_coupling(problem, 0.1)).cwiseAbs().maxCoeff() <= kCouplingAgreement);
+  CHECK((mean_field - entropic_coupling(problem, 0.1, kSolverTolerance)).cwiseAbs().maxCoeff() <=
+        kCouplingAgreement);
 }
 
 TEST_CASE("mean-field gumbel rule has the same fixed point as mean-field price") {
@@ -125,7 +119,8 @@ TEST_CASE("mean-field gumbel rule has the same fixed point as mean-field price")
   options.price_step = 1.0;
   options.rule = RuleKind::gumbel;
   const Matrix gumbel = mean_field_fixed_point(problem, options);
-  CHECK((gumbel - entropic_coupling(problem, 0.2)).cwiseAbs().maxCoeff() <= kCouplingAgreement);
+  CHECK((gumbel - entropic_coupling(problem, 0.2, kSolverTolerance)).cwiseAbs().maxCoeff() <=
+        kCouplingAgreement);
 }
 
 TEST_CASE("sampled price rule approaches the entropic coupling as units grow", "[statistical]") {
@@ -142,7 +137,7 @@ TEST_CASE("sampled price rule approaches the entropic coupling as units grow", "
   constexpr double kTemperature = 0.1;
   constexpr double kRequiredFallPerDecade = 2.0;
   constexpr std::uint64_t kSeed = 11;
-  const Matrix sinkhorn = entropic_coupling(problem, kTemperature);
+  const Matrix sinkhorn = entropic_coupling(problem, kTemperature, kSolverTolerance);
   double previous = 0;
   for (const long units : {1000L, 10000L, 100000L}) {
     DynamicsOptions options;
