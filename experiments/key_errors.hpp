@@ -27,11 +27,9 @@ std::string key_place(const ExperimentValues& values, const std::string& section
 template <class Check>
 void check_as_keys(const ExperimentValues& values, const std::string& section, Check&& check,
                    std::initializer_list<std::pair<const char*, const char*>> renamed = {}) {
-  try {
-    check();
-  } catch (const InputError& e) {
-    throw e.at(key_place(values, section, e.where(), renamed));
-  }
+  check_under_names(std::forward<Check>(check), [&](const std::string& field) {
+    return key_place(values, section, field, renamed);
+  });
 }
 
 }  // namespace allocsim::detail
