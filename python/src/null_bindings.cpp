@@ -135,12 +135,10 @@ py::dict sample_nulls(NullModel model, const std::string& function, const py::ob
   options.read("share_units", nulls.share_units);
   options.read("tolerance", nulls.bicm.tolerance);
   options.read("max_iterations", nulls.bicm.max_iterations);
-  try {
-    nulls.validate();
-  } catch (const InputError& e) {
-    const std::string where = e.where() == "curveball_trades" ? "trades" : e.where();
-    value_error(where, e.reason());
-  }
+  check_under_names([&] { nulls.validate(); },
+                    [](const std::string& field) {
+                      return field == "curveball_trades" ? std::string("trades") : field;
+                    });
   bool keep = true;
   options.read("keep_samples", keep);
   // One thread evaluates the metrics: the samples are stored in the order
